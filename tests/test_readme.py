@@ -32,4 +32,4 @@ def test_readme_opens_with_the_job_and_the_cautions():
     first_para = text.split("\n\n")[1]
     assert "process engineers" in first_para and "equilibrium" in first_para
     assert "thermodynamic ceiling, not a design" in text
-    assert "licensed engineering practice" in text
+    assert "licensed engineering" in text and "local codes" in text
