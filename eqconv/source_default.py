@@ -90,12 +90,12 @@ def _cp_model(cas: str, key: str) -> tuple[CpModel, str]:
     from thermo import HeatCapacityGas
 
     obj = HeatCapacityGas(CASRN=cas)
-    trc_p = (obj.TRCCp_parameters or {}).get("TRCIG")
+    trc_p = (getattr(obj, "TRCCp_parameters", None) or {}).get("TRCIG")
     trc = None
     if trc_p:
         trc = TRCCp(tuple(float(trc_p[f"a{k}"]) for k in range(8)), float(trc_p["Tmin"]),
                     float(trc_p["Tmax"]), method="TRC ideal-gas correlation (via thermo)")
-    shomate = {k: v for k, v in (obj.Shomate_parameters or {}).items()
+    shomate = {k: v for k, v in (getattr(obj, "Shomate_parameters", None) or {}).items()
                if k.startswith("WEBBOOK_SHOMATE_")}
     if shomate:
         pieces: list[CpModel] = []
