@@ -158,7 +158,7 @@ class PowerSeriesCp:
         out = np.zeros_like(T)
         for a, p in zip(self.coeffs, self.exponents, strict=True):
             out = out + (a if p == 0.0 else a * T**p)
-        return out
+        return np.where(np.isnan(T), np.nan, out)
 
     def _h_anti(self, T: FloatArray) -> FloatArray:
         out = np.zeros_like(T)
@@ -261,6 +261,8 @@ class TRCCp:
     def __post_init__(self) -> None:
         if len(self.a) != 8:
             raise InputError(f"the TRC correlation takes 8 coefficients a0..a7; got {len(self.a)}")
+        if not all(np.isfinite(self.a)):
+            raise InputError(f"TRC coefficients must be finite; got {self.a!r}")
         _check_range_args(self.T_min, self.T_max)
 
     def cp(self, T: ArrayLike) -> FloatArray:
@@ -274,14 +276,20 @@ class TRCCp:
         tail = np.where(above, (a4 - a5 / (dT * dT)) * y2 * y2 * y2 * y2, 0.0)
         return R * (a0 + (a1 / (T * T)) * np.exp(-a2 / T) + a3 * y2 + tail)
 
-    def _quad(self, T: FloatArray, over_T: bool) -> FloatArray:
-        half = 0.5 * (T - T_REF)
-        mid = 0.5 * (T + T_REF)
+    def _gl(self, lo: FloatArray, hi: FloatArray, over_T: bool) -> FloatArray:
+        half = 0.5 * (hi - lo)
+        mid = 0.5 * (hi + lo)
         nodes = mid[..., None] + half[..., None] * _GL_X
         f = self.cp(nodes)
         if over_T:
             f = f / nodes
         return half * np.sum(f * _GL_W, axis=-1)
+
+    def _quad(self, T: FloatArray, over_T: bool) -> FloatArray:
+        # the correlation has a kink at T = a7 (y switches on): integrate each side apart
+        ref = np.full_like(T, T_REF)
+        kink = np.clip(self.a[7], np.minimum(T, ref), np.maximum(T, ref))
+        return self._gl(ref, kink, over_T) + self._gl(kink, T, over_T)
 
     def h_int(self, T: ArrayLike) -> FloatArray:
         """Enthalpy increment ∫_{298.15}^{T} Cp° dT [J/mol]."""
@@ -333,6 +341,9 @@ class TabulatedCp:
         s = np.asarray(self.s_nodes, dtype=float)
         if not (T.ndim == 1 and T.size >= 2 and cp.shape == h.shape == s.shape == T.shape):
             raise InputError("a heat-capacity table needs >= 2 rows of equal-length T, Cp, H, S")
+        if not (np.all(np.isfinite(T)) and np.all(np.isfinite(cp)) and np.all(np.isfinite(h))
+                and np.all(np.isfinite(s))):
+            raise InputError(f"a heat-capacity table must hold finite numbers ({self.method})")
         if np.any(T <= 0) or np.any(np.diff(T) <= 0):
             raise InputError("table temperatures must be > 0 K and strictly increasing")
         if not T[0] <= T_REF <= T[-1]:
@@ -399,6 +410,12 @@ class PiecewiseCp:
         lows = np.array([p.T_min for p in self.pieces])
         if np.any(np.diff(lows) <= 0):
             raise InputError(f"PiecewiseCp pieces must be ordered by T_min; got {lows.tolist()}")
+        for lower, upper in zip(self.pieces[:-1], self.pieces[1:], strict=True):
+            if lower.T_max < upper.T_min:
+                raise InputError(
+                    f"PiecewiseCp pieces leave a gap: {lower.method} ends at {lower.T_max:g} K, "
+                    f"{upper.method} starts at {upper.T_min:g} K"
+                )
         object.__setattr__(self, "_breaks", lows[1:])
         object.__setattr__(self, "_off_h", self._offsets("h"))
         object.__setattr__(self, "_off_s", self._offsets("s"))

@@ -189,10 +189,14 @@ def resolve(identifier: str) -> Identity:
             meta = _ids.search_chemical(text)
         except ValueError:
             raise UnknownSpeciesError(f"no chemical with CAS number {text}") from None
-        key = _COMMON_BY_CAS.get(meta.CASs, meta.formula)
-        return _identity(meta.CASs, meta.common_name, key, phase)
+        return _identity(meta.CASs, meta.common_name, _key_for(meta), phase)
+    atoms = None
     if _FORMULA.match(text):
-        atoms = parse_formula(text)
+        try:
+            atoms = parse_formula(text)
+        except UnknownSpeciesError:  # e.g. "AMMONIA": letters, but not elements
+            atoms = None
+    if atoms is not None:
         hill = atoms_to_Hill(atoms)
         hits = _formula_counts().get(hill, [])
         if len(hits) > 1:
@@ -224,10 +228,16 @@ def resolve(identifier: str) -> Identity:
             f"{text!r} did not match a chemical exactly (nearest: {meta.common_name}, "
             f"CAS {meta.CASs}); give the CAS number to be sure"
         )
-    key = _COMMON_BY_CAS.get(meta.CASs, meta.formula if _single_isomer(meta.formula)
-                             else meta.common_name)
-    return _identity(meta.CASs, meta.common_name, key, phase)
+    return _identity(meta.CASs, meta.common_name, _key_for(meta), phase)
 
 
-def _single_isomer(formula: str) -> bool:
-    return len(_formula_counts().get(formula, [])) <= 1
+def _key_for(meta: object) -> str:
+    """Result key of a chemical found by name or CAS: conventional formula, else its formula
+    when it has no isomers in the database, else its name."""
+    cas = str(getattr(meta, "CASs", ""))
+    formula = str(getattr(meta, "formula", ""))
+    if cas in _COMMON_BY_CAS:
+        return _COMMON_BY_CAS[cas]
+    if len(_formula_counts().get(formula, [])) <= 1:
+        return formula
+    return str(getattr(meta, "common_name", formula))

@@ -34,14 +34,18 @@ _MODELS = ("kirchhoff", "vant_hoff")
 _ARROW = re.compile(r"\s*(?:<=>|<->|⇌|->|→|=)\s*")
 _NUM = r"(\d+(?:\.\d*)?(?:/\d+)?|\.\d+)"
 _TERM_FORMS = (
+    re.compile(rf"^{_NUM}\s*\*\s*(\S.*)$"),  # "3*H2", "3 * H2"
     re.compile(rf"^{_NUM}\s+(\S.*)$"),  # "3 H2"
-    re.compile(rf"^{_NUM}\s*\*\s*(\S.*)$"),  # "3*H2"
     re.compile(rf"^{_NUM}([A-Z(].*)$"),  # "3H2" (a CAS number continues with '-')
 )
+_BAD_TOKEN = re.compile(r"(^|\s)[+*/=<>]|[+*/=<>](\s|$)|^[<>=*/]")
 
 
 def _coefficient(text: str) -> float:
-    value = float(Fraction(text)) if "/" in text else float(text)
+    try:
+        value = float(Fraction(text)) if "/" in text else float(text)
+    except (ZeroDivisionError, ValueError):
+        raise ReactionSyntaxError(f"cannot read coefficient {text!r}") from None
     if not np.isfinite(value) or value <= 0:
         raise ReactionSyntaxError(f"a stoichiometric coefficient must be > 0; got {text!r}")
     return value
@@ -52,17 +56,19 @@ def _parse_side(side: str, sign: float, equation: str) -> list[tuple[str, float]
         raise ReactionSyntaxError(f"one side of {equation!r} is empty")
     terms: list[tuple[str, float]] = []
     # species are separated by '+' with whitespace around it (so 'C(s)' or 'H+' stay whole)
-    for raw in re.split(r"\s+\+\s+", side.strip()):
+    # '+' separates terms when a term follows it ("N2 + 3 H2", also "N2+3H2")
+    for raw in re.split(r"\s*\+\s*(?=[\d.A-Za-z(])", side.strip()):
         raw = raw.strip()
         for form in _TERM_FORMS:
             m = form.match(raw)
             if m:
-                terms.append((m.group(2).strip(), sign * _coefficient(m.group(1))))
+                coef, name = _coefficient(m.group(1)), m.group(2).strip()
                 break
         else:
-            if not raw or raw in "+*":
-                raise ReactionSyntaxError(f"cannot read term {raw!r} of {equation!r}")
-            terms.append((raw, sign))
+            coef, name = 1.0, raw
+        if not name or _BAD_TOKEN.search(name):
+            raise ReactionSyntaxError(f"cannot read term {raw!r} of {equation!r}")
+        terms.append((name, sign * coef))
     return terms
 
 
@@ -125,8 +131,11 @@ def atom_imbalance(coefficients: Mapping[str, float],
 
 
 def _fmt(nu: float) -> str:
-    f = Fraction(nu).limit_denominator(12)
-    return "" if f == 1 else (str(f) if abs(float(f) - nu) < 1e-12 else f"{nu:g}")
+    """Coefficient as text that parses back to the same float (1 is left out)."""
+    f = Fraction(nu).limit_denominator(1000)
+    if float(f) == nu:
+        return "" if f == 1 else str(f)
+    return repr(float(nu))
 
 
 class Reaction:
@@ -185,6 +194,11 @@ class Reaction:
                 coefficients[sp.key] = nu
             resolved[sp.key] = sp
         coefficients = {k: v for k, v in coefficients.items() if abs(v) > 1e-12}
+        if not coefficients:
+            raise ReactionSyntaxError(
+                f"{equation!r} has no net change once its species are resolved (the same "
+                "species on both sides?)"
+            )
         bad = atom_imbalance(coefficients, {k: resolved[k].atoms for k in coefficients})
         if bad:
             detail = ", ".join(f"{el}: {v:+g}" for el, v in sorted(bad.items()))
