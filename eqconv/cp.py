@@ -321,8 +321,9 @@ class TabulatedCp:
     -----
     H is interpolated with slopes dH/dT = Cp and S with slopes dS/dT = Cp/T, so the
     interpolants reproduce the table at every node and are C¹ between nodes. The heat
-    capacity returned between nodes is the derivative of the H interpolant, so Cp, H and
-    S stay mutually consistent to the table's own precision.
+    capacity returned between nodes is the derivative of the H interpolant. H and S are
+    separate splines, so between nodes dS/dT equals Cp/T only approximately (within about
+    0.1 J/(mol K) for JANAF's 100 K spacing); values match the table at the nodes.
     """
 
     T_nodes: tuple[float, ...]
