@@ -53,12 +53,16 @@ S_RANKING: tuple[tuple[str, str], ...] = (
 )
 
 #: Documented default standard uncertainties per source (this project's choice, used when
-#: the source gives none): ΔfH° [J/mol], S° [J/(mol K)]. ATcT's own uncertainties for
-#: common small molecules are of order 0.01–0.1 kJ/mol; compilations are looser.
+#: the source gives none): ΔfH° [J/mol], S° [J/(mol K)]. For ATcT values the uncertainty
+#: that chemicals ships with the ATcT table is used where present (0.01–0.1 kJ/mol for
+#: common small molecules); compilations are looser.
 U_HF_BY_SOURCE = {"ATCT_G": 0.1e3, "WEBBOOK": 0.4e3, "CRC": 0.5e3, "JANAF": 0.4e3,
                   "YAWS": 2.0e3}
 U_S_BY_SOURCE = {"WEBBOOK": 0.2, "CRC": 0.3, "JANAF": 0.2, "YAWS": 1.0}
-U_CP_REL_BY_METHOD = {"shomate": 0.002, "trc": 0.01, "poling": 0.02}
+U_CP_REL_BY_METHOD = {"shomate": 0.002, "trc": 0.01, "poling": 0.02, "monatomic": 0.0}
+
+#: He, Ne, Ar, Kr, Xe
+_NOBLE_GASES = {"7440-59-7", "7440-01-9", "7440-37-1", "7439-90-9", "7440-63-3"}
 
 
 @dataclass(frozen=True)
@@ -117,12 +121,18 @@ def _cp_model(cas: str, key: str) -> tuple[CpModel, str]:
         return PiecewiseCp(tuple(pieces), method=f"{method} (piecewise)"), "shomate"
     if trc is not None:
         return trc, "trc"
+    if cas in _NOBLE_GASES:
+        # an ideal monatomic gas has Cp° = 5/2 R exactly (translation only; electronic
+        # excitation is negligible below ~5000 K) - common practice
+        return PowerSeriesCp((2.5 * R,), (0.0,), 50.0, 6000.0,
+                             "ideal monatomic gas, Cp° = 5/2 R"), "monatomic"
     from chemicals.heat_capacity import Cp_data_Poling
 
     if cas in Cp_data_Poling.index:
         row = Cp_data_Poling.loc[cas]
         coeffs = [row[f"a{k}"] for k in range(5)]
-        if all(c == c for c in coeffs):  # no NaN
+        limits = (row["Tmin"], row["Tmax"])
+        if all(c == c for c in (*coeffs, *limits)):  # no NaN
             return PowerSeriesCp(tuple(R * float(c) for c in coeffs),
                                  (0.0, 1.0, 2.0, 3.0, 4.0), float(row["Tmin"]),
                                  float(row["Tmax"]),
@@ -131,6 +141,21 @@ def _cp_model(cas: str, key: str) -> tuple[CpModel, str]:
         f"no ranked ideal-gas Cp correlation (Shomate, TRC, Poling) for {key} (CAS {cas}); "
         "supply the species yourself or use data='janaf'"
     )
+
+
+def _u_hf(cas: str, method: str, value: float, ident: Identity) -> float:
+    """Standard uncertainty of ΔfH° [J/mol]: zero for an element in its reference state,
+    ATcT's own where it gives one, else the documented default of the source."""
+    if value == 0.0 and len(ident.atoms) == 1:
+        return 0.0
+    if method == "ATCT_G":
+        from chemicals.reaction import Hfg_ATcT_data
+
+        if cas in Hfg_ATcT_data.index:
+            u = Hfg_ATcT_data.loc[cas, "uncertainty"]
+            if u == u and float(u) > 0:  # not NaN
+                return float(u)
+    return U_HF_BY_SOURCE[method]
 
 
 @cache
@@ -159,5 +184,5 @@ def default_record(ident: Identity) -> DefaultRecord:
         )
     cp, cp_key = _cp_model(cas, ident.key)
     return DefaultRecord(hf298=hf[0], hf_source=hf[2], s298=s[0], s_source=s[2], cp=cp,
-                         cp_key=cp_key, u_hf298=U_HF_BY_SOURCE[hf[1]],
+                         cp_key=cp_key, u_hf298=_u_hf(cas, hf[1], hf[0], ident),
                          u_s298=U_S_BY_SOURCE[s[1]], u_cp_rel=U_CP_REL_BY_METHOD[cp_key])

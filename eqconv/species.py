@@ -226,6 +226,7 @@ def _from_identity(ident: Identity, data: str) -> Species:
 
     if data == "janaf" or ident.phase != "g":
         rec = janaf_record(ident)
+        u_hf = 0.0 if rec.hf298 == 0.0 and len(ident.atoms) == 1 else U_HF_DEFAULT
         label = f"NIST-JANAF 4th ed. (1998), table {rec.table}"
         if data != "janaf":
             label += " (condensed phases come from NIST-JANAF in the default set)"
@@ -233,7 +234,7 @@ def _from_identity(ident: Identity, data: str) -> Species:
                        atoms=dict(ident.atoms), phase=ident.phase, hf298=rec.hf298,
                        s298=rec.s298, cp_model=rec.cp, data=data,
                        sources={"hf298": label, "s298": label, "cp": label},
-                       u_hf298=U_HF_DEFAULT, u_s298=U_S_DEFAULT, u_cp_rel=U_CP_REL_DEFAULT)
+                       u_hf298=u_hf, u_s298=U_S_DEFAULT, u_cp_rel=U_CP_REL_DEFAULT)
     from .source_default import default_record
 
     drec = default_record(ident)

@@ -121,7 +121,10 @@ def test_every_datum_has_a_source(data: str, key: str) -> None:
     assert sp.cp_model.method
     lo, hi = sp.T_range
     assert 0.0 < lo <= T_REF < hi
-    assert sp.u_hf298 > 0.0 and sp.u_s298 > 0.0 and sp.u_cp_rel > 0.0
+    # an element in its reference state has ΔfH° = 0 exactly, by definition
+    element_ref = len(sp.atoms) == 1 and sp.hf298 == 0.0
+    assert (sp.u_hf298 == 0.0) if element_ref else (sp.u_hf298 > 0.0)
+    assert sp.u_s298 > 0.0 and sp.u_cp_rel > 0.0
     if data == "janaf":
         assert "NIST-JANAF" in sp.sources["hf298"]
 
