@@ -33,3 +33,14 @@ def test_readme_opens_with_the_job_and_the_cautions():
     assert "process engineers" in first_para and "equilibrium" in first_para
     assert "thermodynamic ceiling, not a design" in text
     assert "licensed engineering" in text and "local codes" in text
+
+
+def test_readme_python_examples_run():
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    blocks = re.findall(r"```python\n(.+?)\n```", text, flags=re.S)
+    assert blocks
+    namespace: dict[str, object] = {}
+    for block in blocks:  # later blocks build on earlier ones, as a reader would run them
+        exec(compile(block, "README.md", "exec"), namespace)
+    res = namespace["res"]
+    assert res.converged.all()  # type: ignore[attr-defined]
