@@ -78,7 +78,9 @@ class ExtentSolution:
     Attributes
     ----------
     extents : ndarray (..., nr)
-        Extent of each reaction from the feed [mol]; NaN where not converged.
+        Extent of each reaction from the feed [mol]; NaN where not converged. With several
+        reactions they are recovered from the amounts, to an absolute precision of about
+        1e-16 of the total amount (the amounts themselves keep full relative precision).
     amounts : ndarray (..., ns)
         Equilibrium amounts [mol]; NaN where not converged.
     converged : ndarray (...) of bool
@@ -194,14 +196,19 @@ class _Outputs:
         relative to the feed's content of it (the same at equilibrium by conservation).
         """
         if self.cons.size:
-            dev = np.abs((n - n0) @ self.cons)
-            if self.feed_row is not None:  # one feed everywhere: one row of sizes
-                size = self.feed_row @ np.abs(self.cons)
+            # conserved-combination-major, so that row operations stay contiguous
+            now = self.cons.T @ n.T
+            if self.feed_row is not None:  # one feed everywhere: scalars per combination
+                ref = self.cons.T @ self.feed_row
+                size = np.abs(self.cons.T) @ self.feed_row
             else:
-                size = n0 @ np.abs(self.cons)
-            size += 1e-300
-            dev /= size
-            berr = _rmax(dev)
+                ref = self.cons.T @ n0.T
+                size = np.abs(self.cons.T) @ n0.T
+            berr = np.zeros(n.shape[0])
+            for k in range(now.shape[0]):
+                d = np.abs(now[k] - ref[k])
+                d /= size[k] + 1e-300
+                np.maximum(berr, d, out=berr)  # NaN propagates
         else:
             berr = np.zeros(n.shape[0])
         ok = conv & (berr <= BALANCE_TOL)
@@ -256,7 +263,9 @@ def _solve_multi(
             q = slice(a, a + chunk)
             p: Any = slice(a, min(a + chunk, pts.size)) if one else pts[q]
             n0, lnK = n0_f[p], lnK_f[p]
-            gconst = np.where(gas, lnP_f[p][:, None] + (0.0 if phi_f is None else phi_f[p]), 0.0)
+            gconst = lnP_f[p][:, None] * gas  # ln(P/p°) + ln φ on gas species, 0 elsewhere
+            if phi_f is not None:
+                gconst = gconst + np.where(gas, phi_f[p], 0.0)
             if table is not None:
                 x, okt = _table_start(table, c_all[q])
                 if not np.all(okt):
@@ -266,7 +275,8 @@ def _solve_multi(
             x, ok, it, res = _multi_block(
                 nu, n0, lnK, gconst, gas, pattern, tol, max_iter, x, table is not None
             )
-            out.store(p, n0, (x - n0) @ Lp.T, x, ok, it, res, np.broadcast_to(blk, res.shape))
+            ref = (n0 if out.feed_row is None else out.feed_row) @ Lp.T
+            out.store(p, n0, x @ Lp.T - ref, x, ok, it, res, np.broadcast_to(blk, res.shape))
 
 
 def _solve_all(

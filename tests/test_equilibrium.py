@@ -215,6 +215,7 @@ def test_dependent_reactions_name_the_equations() -> None:
         ({"reactions": []}, InputError, "at least one reaction"),
         ({"T": np.ones(3), "P": np.ones(4) * 1e5}, InputError, "do not broadcast"),
         ({"standard_pressure": -1.0}, InputError, "standard_pressure"),
+        ({"model": "magic"}, InputError, "model must be"),
     ],
 )
 def test_bad_input(nh3: Reaction, kwargs: dict, error: type, match: str) -> None:
@@ -222,6 +223,12 @@ def test_bad_input(nh3: Reaction, kwargs: dict, error: type, match: str) -> None
     args.update(kwargs)
     with pytest.raises(error, match=match):
         equilibrium(**args)
+
+
+def test_vant_hoff_model_is_passed_to_ln_K(nh3: Reaction) -> None:
+    a = equilibrium(nh3, {"N2": 1.0, "H2": 3.0}, T=700.0, P=5e6, model="vant_hoff")
+    np.testing.assert_allclose(a.ln_K[0], nh3.ln_K(700.0, model="vant_hoff"), rtol=1e-14)
+    assert bool(a.converged)
 
 
 def test_standard_pressure_does_not_change_the_state(nh3: Reaction) -> None:
