@@ -39,18 +39,16 @@ from numpy.typing import ArrayLike, NDArray
 
 from ._validate import as_pressure, as_temperature
 from .errors import InputError
-from .reaction import Reaction
-from .species import Species
-from .uncertainty import (
-    DataUncertainty,
+from .montecarlo import (
     MonteCarloResult,
     build_system,
     conversion_index,
-    data_uncertainty,
-    ln_K_uncertainty,
     monte_carlo_equilibrium,
     state,
 )
+from .reaction import Reaction
+from .species import Species
+from .uncertainty import DataUncertainty, data_uncertainty, ln_K_uncertainty
 
 __all__ = ["ConversionSensitivity", "SourceComparison", "compare_sources", "conversion_sensitivity"]
 
@@ -472,7 +470,7 @@ def compare_sources(
     percentiles : sequence of float
         Band edges [%].
     **options
-        Further keywords of :func:`~eqconv.uncertainty.monte_carlo_equilibrium` (e.g.
+        Further keywords of :func:`~eqconv.montecarlo.monte_carlo_equilibrium` (e.g.
         ``progress``, ``chunk_points``); ``hf``, ``s``, ``cp``, ``correlation`` go to
         :func:`~eqconv.uncertainty.data_uncertainty`.
 
