@@ -24,7 +24,7 @@ from .errors import (
     UnbalancedReactionError,
     UnknownSpeciesError,
 )
-from .gibbs_api import GibbsResult, gibbs_equilibrium
+from .gibbs_api import gibbs_equilibrium
 from .reaction import Reaction, parse_equation
 from .reaction_basis import derive_reactions
 from .report import DataReport, data_report
@@ -50,7 +50,6 @@ __all__ = [
     "DependentReactionsError",
     "EqconvError",
     "EquilibriumResult",
-    "GibbsResult",
     "InputError",
     "MissingDataError",
     "MonteCarloInterrupted",

@@ -5,8 +5,9 @@ Two paths share the element-potential state (λ, ln N), in which every amount is
 
 * :func:`phase1`, the fast path: the element balances on their own (element) basis, in
   logarithms, species-major arrays and an unrolled Cholesky solve per point;
-* :func:`phase3`, the careful path: the balances in the component basis of the most
-  abundant species, each side a sum of positive terms, Levenberg-Marquardt where Newton
+* :func:`phase3`, the careful path: Gauss-Newton on the logarithms of both sides of the
+  balances in the component basis of the most abundant species and of the element
+  balances together (a consistent, over-determined system), Levenberg-Marquardt where it
   stalls (see :mod:`eqconv.gibbs` for why).
 
 :func:`lp_start` gives the start from the linear programme that neglects mixing.
@@ -256,7 +257,7 @@ def phase1(
                 recorded = recorded[k]
         dlam, dnu = _solve_bordered((WA @ n).reshape(r, r, -1), P, P * F, sn * F0)
         dln = Ar @ dlam + dnu
-        capn = np.maximum(cap, lnn.max(axis=0))
+        capn = np.maximum(cap, lnn.max(axis=0) + 1.0)  # a point above the cap may move
         t = _step_to_cap(lnn, dln, capn, axis=0)
         # first trial on the whole array, then backtrack only where it was rejected
         Lt, Vt = L + t * dlam, V + t * dnu
@@ -352,10 +353,11 @@ def phase3(
     tol: float,
     balance_tol: float,
 ) -> NDArray[np.int64]:
-    """Damped Newton on ln(positive side) = ln(negative side) of each component balance.
+    """Damped Gauss-Newton on ln(positive side) = ln(negative side) of each balance.
 
-    The careful path: component basis of the most abundant species (max-min), updated as
-    the composition changes; Levenberg-Marquardt steps where Newton's fail. Layout (m, nS);
+    The careful path: the component balances in the basis of the most abundant species
+    (max-min, updated as the composition changes) and the element balances, each relative
+    to its own terms; Levenberg-Marquardt steps where Gauss-Newton's fail. Layout (m, nS);
     updates lnn, nu, bid in place and returns the iterations. Vp (m, nb, r): component feed
     amounts of every basis.
     """
@@ -396,7 +398,7 @@ def phase3(
                 d[finite] = -(np.linalg.pinv(Jac[finite]) @ F[finite][:, :, None])[:, :, 0]
             dln = d[:, r:] + d[:, :r] @ C.T
             lnJ, nuJ = lnn[J], nu[J]
-            capJ = np.maximum(ln_cap[J], lnJ.max(axis=1))
+            capJ = np.maximum(ln_cap[J], lnJ.max(axis=1) + 1.0)
             t = _step_to_cap(lnJ, dln, capJ, axis=1)
             pend = np.flatnonzero(finite)
             for h in range(_MAX_HALVINGS):

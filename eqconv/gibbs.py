@@ -20,13 +20,14 @@ solved per point by damped Newton, vectorized over the grid in chunks:
 * fast path: Newton on ln(Σ_i a_ij n_i) = ln b_j and ln Σ n_i = ln N; the matrix
   [[Aᵀ D A, Aᵀ n], [nᵀ A, 0]] (D = diag n) is solved by a Cholesky factorisation of its
   leading block and the Schur complement; Armijo backtracking on the squared residuals;
-  no step may take an amount above the number of atoms;
+  steps keep every amount below the number of atoms (or let it fall, if it is above);
 * trace check and careful path: the balances in a *component basis* B of the most
   abundant species, ``Σ_i c_ij n_i = Σ_i c_ij n°_i`` with ``c = A B⁻¹`` exact rationals,
   each side a sum of positive terms (the feed side resolved exactly), so that a balance
   decided by trace species (a reaction driven to completion, K ~ 1e±100) is closed
   relative to its own terms, not swamped by the major species. Points that fail it are
-  solved by Newton on the logarithms of both sides (Levenberg-Marquardt where it stalls).
+  solved by Gauss-Newton on the logarithms of both sides of these balances and of the
+  element balances together (Levenberg-Marquardt where it stalls).
 
 Elements absent from the feed are removed first with the species containing them, then
 the species that the element balances force to zero (a feed on an edge of the composition
@@ -173,7 +174,7 @@ def _solve_chunk(
     """
     m, nS = len(g), len(prob.species)
     rows = np.arange(m)
-    gT = np.ascontiguousarray(g[:, prob.species].T)
+    gT = np.ascontiguousarray((g if nS == g.shape[1] else g[:, prob.species]).T)
     bT = np.ascontiguousarray(b[:, prob.cb.cols].T)
     V, feas, _ = prob.vertices(frows, elements)
     if not np.all(np.any(feas, axis=1)):
@@ -222,7 +223,8 @@ def _solve_chunk(
         score = lnT[prob.bases].min(axis=1)  # (nb, m)
         bid = np.argmax(score, axis=0).astype(np.intp)
         with np.errstate(over="ignore", invalid="ignore"):
-            Rsum = np.abs(prob.Ared.T @ np.exp(lnT) - bT).sum(axis=0)
+            n = np.exp(lnT)
+            Rsum = np.abs(prob.AredT @ n - bT).sum(axis=0)
             comp = prob.Kmax[bid] * Rsum / np.exp(score[bid, rows])
         comp = np.where(conv & np.isfinite(comp), comp, np.inf)
         check = np.flatnonzero(conv & ~(comp <= 0.5 * balance_tol))
@@ -244,6 +246,8 @@ def _solve_chunk(
                 prob, gT[:, hard].T, Vp, b[hard], lnh, nuh, bh, max_iter, tol, balance_tol
             )
             lnT[:, hard], nu[hard], bid[hard] = lnh.T, nuh, bh
+            with np.errstate(over="ignore"):
+                n[:, hard] = np.exp(lnh.T)
             comp[hard] = trace_residual(prob, lnh, Vp, b[hard], bh)
             hard = hard[~(comp[hard] <= balance_tol)]
     # outputs, species-major: mole fractions, total, element balances, stationarity
@@ -251,7 +255,8 @@ def _solve_chunk(
     e = np.exp(lnT - mx)
     se = e.sum(axis=0)
     with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
-        n = np.exp(lnT)
+        if nS == prob.r:
+            n = np.exp(lnT)
         bal = np.where(b.T > 0, np.abs(prob.A.T @ n - b.T) / b.T, 0.0).max(axis=0)
         stat = np.zeros(m)
         if len(prob.nu):
@@ -541,13 +546,20 @@ def _solve_points(
     fcols = prob.cb.cols if elements else S
 
     def run(idx: IntArray, warm: Warm | None) -> dict[str, FloatArray]:
-        urow, uinv = np.unique(findex[idx], return_inverse=True)
+        sel: IntArray | slice = idx
+        if idx[-1] - idx[0] == len(idx) - 1:  # contiguous: views, not copies
+            sel = slice(int(idx[0]), int(idx[-1]) + 1)
+        fi = findex[sel]
+        if len(frows) == 1:
+            urow, uinv = np.zeros(1, dtype=np.intp), np.zeros(len(idx), dtype=np.intp)
+        else:
+            urow, uinv = np.unique(fi, return_inverse=True)
         return _solve_chunk(
             prob,
-            g[idx],
+            g[sel],
             frows[urow][:, fcols],
             uinv.reshape(-1),
-            brows[findex[idx]],
+            brows[fi],
             elements,
             warm,
             **kw,

@@ -1,9 +1,11 @@
 """Equilibrium of a species list by Gibbs-energy minimisation: the species-aware layer.
 
 :func:`gibbs_equilibrium` resolves species, evaluates their standard chemical potentials
-over the grid and calls :func:`eqconv.gibbs.minimize_gibbs`. No reactions are chosen by
-the user; an independent set (:mod:`eqconv.reaction_basis`) is only used to report the
-residuals ln Q − ln K.
+over the grid and calls :func:`eqconv.gibbs.minimize_gibbs`. The user chooses no reactions;
+the result is the same :class:`eqconv.result.EquilibriumResult` as from
+:func:`eqconv.equilibrium`, written in terms of an independent reaction set derived from the
+species (:mod:`eqconv.reaction_basis`), so conversions, yields, selectivities, residuals
+ln Q − ln K and per-reaction diagnostics work the same way.
 
 Examples
 --------
@@ -13,12 +15,13 @@ Invented scenario: a pilot reformer fed with steam and methane at steam:carbon 3
 ...                         T=1000.0, P=20e5, data="janaf")
 >>> bool(res.converged), round(float(res.conversion("CH4")), 3)
 (True, 0.546)
+>>> [r.equation for r in res.reactions]
+['CO + 3 H2 = CH4 + H2O', 'H2O + CO = CO2 + H2']
 """
 
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -26,89 +29,20 @@ from numpy.typing import ArrayLike, NDArray
 from ._validate import as_amount, as_pressure, as_temperature
 from .constants import P_BAR
 from .errors import ConvergenceError, InputError
+from .extent_solver import ExtentSolution
 from .gibbs import GibbsSolution, minimize_gibbs
-from .reaction_basis import atom_matrix, reaction_equations
+from .reaction import Reaction
+from .reaction_basis import atom_matrix, independent_reactions
+from .result import EquilibriumResult
 from .species import Species, get_species
 
 __all__ = ["GibbsResult", "gibbs_equilibrium"]
 
 FloatArray = NDArray[np.float64]
 
-
-@dataclass(frozen=True)
-class GibbsResult:
-    """Equilibrium state of a species list on a grid (from :func:`gibbs_equilibrium`).
-
-    Attributes
-    ----------
-    species : tuple of str
-        Species keys, in the order given.
-    elements : tuple of str
-        Elements, in order of first appearance.
-    T, P : ndarray
-        Temperature [K] and absolute pressure [Pa], broadcast to the grid shape.
-    feed : dict of str to ndarray
-        Feed amounts [mol] (0 for species not fed).
-    amounts : dict of str to ndarray
-        Equilibrium amounts [mol]; NaN where the point did not converge.
-    mole_fractions : dict of str to ndarray
-        Gas mole fractions [-]; NaN where the point did not converge.
-    total : ndarray
-        Total amount of gas [mol].
-    converged : ndarray of bool
-        Per-point convergence (every tolerance met).
-    iterations : ndarray of int
-        Newton iterations per point.
-    balance_residual, trace_balance_residual, stationarity_residual : ndarray
-        As in :class:`eqconv.gibbs.GibbsSolution` [-].
-    reactions : tuple of str
-        An independent reaction set of the species (the one the residuals refer to).
-    solution : GibbsSolution
-        The array-level result (ln amounts, presence flags).
-    """
-
-    species: tuple[str, ...]
-    elements: tuple[str, ...]
-    T: FloatArray
-    P: FloatArray
-    feed: dict[str, FloatArray]
-    amounts: dict[str, FloatArray]
-    mole_fractions: dict[str, FloatArray]
-    total: FloatArray
-    converged: NDArray[np.bool_]
-    iterations: NDArray[np.int64]
-    balance_residual: FloatArray
-    trace_balance_residual: FloatArray
-    stationarity_residual: FloatArray
-    reactions: tuple[str, ...]
-    solution: GibbsSolution
-
-    def conversion(self, species: str) -> FloatArray:
-        """Fraction of the fed `species` consumed, (n°_i − n_i)/n°_i [-].
-
-        Raises
-        ------
-        InputError
-            If `species` is unknown or not in the feed at some point.
-        """
-        if species not in self.amounts:
-            raise InputError(f"unknown species {species!r}; species are {list(self.species)}")
-        n0 = self.feed[species]
-        if np.any(n0 <= 0):
-            raise InputError(
-                f"{species} is not in the feed (at some grid point); its conversion is undefined"
-            )
-        return (n0 - self.amounts[species]) / n0
-
-    def yield_of(self, product: str, reactant: str, per: float = 1.0) -> FloatArray:
-        """Moles of `product` formed per mole of `reactant` fed, divided by `per` [-]."""
-        for k in (product, reactant):
-            if k not in self.amounts:
-                raise InputError(f"unknown species {k!r}; species are {list(self.species)}")
-        n0 = self.feed[reactant]
-        if np.any(n0 <= 0):
-            raise InputError(f"{reactant} is not in the feed (at some grid point)")
-        return (self.amounts[product] - self.feed[product]) / (n0 * per)
+#: Result type of :func:`gibbs_equilibrium`: the shared :class:`~eqconv.result.EquilibriumResult`
+#: (kept under this name for code written against an earlier version).
+GibbsResult = EquilibriumResult
 
 
 def _resolve(species: Sequence[str | Species], data: str) -> list[Species]:
@@ -122,6 +56,83 @@ def _resolve(species: Sequence[str | Species], data: str) -> list[Species]:
     return out
 
 
+def _feed(
+    feed: Mapping[str, ArrayLike],
+    species: Sequence[str | Species],
+    sps: list[Species],
+    data: str,
+) -> dict[str, FloatArray]:
+    keys = [s.key for s in sps]
+    by_text = {s.key: s.key for s in sps}
+    by_text.update({t: s.key for t, s in zip(species, sps, strict=True) if isinstance(t, str)})
+    if not isinstance(feed, Mapping) or not feed:
+        raise InputError(f"feed must be a non-empty mapping species -> amount; got {feed!r}")
+    fed: dict[str, FloatArray] = {}
+    for name, amount in feed.items():
+        key = by_text.get(name)
+        if key is None:
+            try:
+                key = get_species(name, data=data).key
+            except Exception as exc:
+                raise InputError(
+                    f"feed species {name!r} is not in the species list {keys}"
+                ) from exc
+            if key not in keys:
+                raise InputError(f"feed species {name!r} is not in the species list {keys}")
+        fed[key] = fed.get(key, 0.0) + as_amount(amount, name)
+    return fed
+
+
+def _as_result(
+    sol: GibbsSolution,
+    sps: list[Species],
+    n0: FloatArray,
+    mu0: FloatArray,
+    lnP: FloatArray,
+    T: FloatArray,
+    P: FloatArray,
+) -> EquilibriumResult:
+    """Express the state through an independent reaction set of the species."""
+    keys = tuple(s.key for s in sps)
+    A, _ = atom_matrix([s.atoms for s in sps])
+    nu = independent_reactions(A).astype(float)  # "auto": the smallest coefficients
+    rxns = tuple(
+        Reaction({k: c for k, c in zip(keys, row, strict=True) if c}, species=sps) for row in nu
+    )
+    shape = sol.converged.shape
+    nr = len(nu)
+    n = np.broadcast_to(sol.amounts, (*shape, len(keys)))
+    extents = (n - n0) @ np.linalg.pinv(nu) if nr else np.zeros((*shape, 0))
+    blocked = (~np.broadcast_to(sol.present, n.shape).astype(bool))[..., None, :] & (nu != 0)
+    blocked = np.any(blocked, axis=-1)
+    with np.errstate(invalid="ignore"):
+        ln_x = sol.ln_amounts - np.log(sol.total)[..., None]
+        terms = np.where(nu != 0, (mu0 + lnP[..., None] + ln_x)[..., None, :] * nu, 0.0)
+        residual = np.where(blocked, 0.0, terms.sum(axis=-1))
+    ext = ExtentSolution(
+        extents=np.where(sol.converged[..., None], extents, np.nan),
+        amounts=n,
+        converged=sol.converged,
+        iterations=sol.iterations,
+        residual=residual,
+        balance_error=sol.balance_residual,
+        blocked=blocked,
+    )
+    return EquilibriumResult(
+        reactions=rxns,
+        species=keys,
+        phases=tuple(s.phase for s in sps),
+        T=np.broadcast_to(T, shape).copy(),
+        P=np.broadcast_to(P, shape).copy(),
+        feed={k: n0[..., i] for i, k in enumerate(keys)},
+        solution=ext,
+        ln_K=np.broadcast_to(-(mu0 @ nu.T), (*shape, nr)),
+        standard_pressure=P_BAR,
+        element_balance_error=sol.balance_residual,
+        atoms=tuple(dict(s.atoms) for s in sps),
+    )
+
+
 def gibbs_equilibrium(
     species: Sequence[str | Species],
     feed: Mapping[str, ArrayLike],
@@ -132,7 +143,7 @@ def gibbs_equilibrium(
     gas: str = "ideal",
     on_failure: str = "raise",
     tol: float = 1e-10,
-) -> GibbsResult:
+) -> EquilibriumResult:
     """Equilibrium composition of a species list, without choosing reactions.
 
     Parameters
@@ -158,7 +169,10 @@ def gibbs_equilibrium(
 
     Returns
     -------
-    GibbsResult
+    EquilibriumResult
+        With the reactions of an independent set of the species (smallest coefficients;
+        p° = 1 bar); a reaction that needs a species that cannot be present at a point is
+        reported as blocked there.
 
     Raises
     ------
@@ -173,78 +187,40 @@ def gibbs_equilibrium(
     -----
     Minimises G/(R T) = Σ_i n_i [μ°_i(T)/(R T) + ln(P/p°) + ln(n_i/N)] (p° = 1 bar)
     subject to the element balances; see :mod:`eqconv.gibbs`. With the same species data
-    it gives the same state as the extent formulation with any independent reaction set.
+    it gives the state of the extent formulation with any independent reaction set.
     """
     if gas != "ideal":
         raise InputError(f"gas must be 'ideal' for the Gibbs formulation; got {gas!r}")
     if on_failure not in ("raise", "flag"):
         raise InputError(f"on_failure must be 'raise' or 'flag'; got {on_failure!r}")
     sps = _resolve(species, data)
-    keys = tuple(s.key for s in sps)
-    by_text = {}
-    for text, sp in zip(species, sps, strict=True):
-        by_text[sp.key] = sp.key
-        if isinstance(text, str):
-            by_text[text] = sp.key
-    if not isinstance(feed, Mapping) or not feed:
-        raise InputError(f"feed must be a non-empty mapping species -> amount; got {feed!r}")
-    fed: dict[str, ArrayLike] = {}
-    for name, amount in feed.items():
-        key = by_text.get(name)
-        if key is None:
-            try:
-                key = get_species(name, data=data).key
-            except Exception as exc:
-                raise InputError(
-                    f"feed species {name!r} is not in the species list {list(keys)}"
-                ) from exc
-            if key not in keys:
-                raise InputError(f"feed species {name!r} is not in the species list {list(keys)}")
-        fed[key] = as_amount(amount, name)
-    gas_mask = np.array([s.phase == "g" for s in sps])
-    if not np.all(gas_mask):
+    fed = _feed(feed, species, sps, data)
+    condensed = [s.key for s in sps if s.phase != "g"]
+    if condensed:
         raise NotImplementedError(
-            "condensed species ("
-            + ", ".join(s.key for s in sps if s.phase != "g")
-            + ") are not supported by the Gibbs formulation yet"
+            f"condensed species ({', '.join(condensed)}) are not supported by the Gibbs "
+            "formulation yet"
         )
-    Tarr = as_temperature(T)
-    Parr = as_pressure(P)
+    Tarr, Parr = as_temperature(T), as_pressure(P)
     shape = np.broadcast_shapes(Tarr.shape, Parr.shape, *(np.shape(v) for v in fed.values()))
-    A, elements = atom_matrix([s.atoms for s in sps])
+    A, _ = atom_matrix([s.atoms for s in sps])
     mu0 = np.stack([np.broadcast_to(s.mu0_over_RT(Tarr), Tarr.shape) for s in sps], axis=-1)
     n0 = np.stack(
-        [np.broadcast_to(np.asarray(fed.get(k, 0.0), dtype=float), shape) for k in keys], axis=-1
+        [np.broadcast_to(np.asarray(fed.get(s.key, 0.0), dtype=float), shape) for s in sps], axis=-1
     )
-    sol = minimize_gibbs(A, mu0, n0, np.log(Parr / P_BAR), tol=tol)
+    lnP = np.log(Parr / P_BAR)
+    sol = minimize_gibbs(A, mu0, n0, lnP, tol=tol)
     if on_failure == "raise" and not sol.all_converged:
         bad = np.argwhere(~np.atleast_1d(sol.converged))[:3]
-        Tb, Pb = np.broadcast_to(Tarr, shape), np.broadcast_to(Parr, shape)
+        Tb, Pb = (
+            np.atleast_1d(np.broadcast_to(Tarr, shape)),
+            np.atleast_1d(np.broadcast_to(Parr, shape)),
+        )
         where = "; ".join(
-            f"T = {float(np.atleast_1d(Tb)[tuple(i)]):g} K, P = "
-            f"{float(np.atleast_1d(Pb)[tuple(i)]):g} Pa"
-            for i in bad
+            f"T = {float(Tb[tuple(i)]):g} K, P = {float(Pb[tuple(i)]):g} Pa" for i in bad
         )
         raise ConvergenceError(
             sol.failure_summary() + f"\nfirst failing conditions: {where}"
             "\n(pass on_failure='flag' to get the other points)"
         )
-    amounts = np.broadcast_to(sol.amounts, (*shape, len(keys)))
-    x = np.broadcast_to(sol.mole_fractions, (*shape, len(keys)))
-    return GibbsResult(
-        species=keys,
-        elements=elements,
-        T=np.broadcast_to(Tarr, shape).copy(),
-        P=np.broadcast_to(Parr, shape).copy(),
-        feed={k: n0[..., i] for i, k in enumerate(keys)},
-        amounts={k: amounts[..., i] for i, k in enumerate(keys)},
-        mole_fractions={k: x[..., i] for i, k in enumerate(keys)},
-        total=np.broadcast_to(sol.total, shape),
-        converged=sol.converged,
-        iterations=sol.iterations,
-        balance_residual=sol.balance_residual,
-        trace_balance_residual=sol.trace_balance_residual,
-        stationarity_residual=sol.stationarity_residual,
-        reactions=tuple(reaction_equations(sol.reactions, keys)) if len(sol.reactions) else (),
-        solution=sol,
-    )
+    return _as_result(sol, sps, n0, mu0, np.broadcast_to(lnP, shape), Tarr, Parr)

@@ -199,3 +199,12 @@ def test_edge_of_composition_space_forces_species_to_zero():
     assert support.tolist() == [[True, False, False]]
     V, T = cb.vertex_amounts([[1.0, 0.0, 1e-9]])
     assert cb.feasible(V, T)[1].all()
+
+
+def test_docstring_examples_run():
+    import doctest
+
+    import eqconv.reaction_basis
+
+    result = doctest.testmod(eqconv.reaction_basis)
+    assert result.attempted >= 6 and result.failed == 0
