@@ -12,14 +12,20 @@ Trade definitions used here (common practice):
 * selectivity of P relative to a reference species R: S = (n_P − n_P,0) / |n_R − n_R,0| —
   mol of P formed per mol of R formed (R a product, e.g. CO2 against CO) or consumed (R a
   reactant, e.g. H2 against CH4 consumed).
+
+With a pure condensed species in the reactions, :meth:`EquilibriumResult.present` says where
+it exists; with a fugacity model, :attr:`EquilibriumResult.fugacity_coefficients` and
+:attr:`EquilibriumResult.gas_model_report` (also in :meth:`EquilibriumResult.data_report`)
+describe the gas; :meth:`EquilibriumResult.gas_phase_check` says where the gas would
+condense.
 """
 
 from __future__ import annotations
 
 import warnings
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from functools import cached_property
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 from numpy.typing import NDArray
@@ -27,6 +33,12 @@ from numpy.typing import NDArray
 from .errors import InputError
 from .extent_solver import ExtentSolution
 from .reaction import Reaction
+
+if TYPE_CHECKING:
+    from .fugacity import GasModelReport
+    from .phase_check import GasPhaseCheck
+    from .report import DataReport
+    from .species import Species
 
 __all__ = ["DIAGNOSTIC_REL", "EquilibriumResult"]
 
@@ -63,6 +75,27 @@ class EquilibriumResult:
         Largest relative error of an element balance at each point [-].
     atoms : tuple of dict
         Element counts of each species (for element yields).
+    gas_model : str
+        ``"ideal"``, ``"peng-robinson"`` or ``"srk"``.
+    gas_model_report : GasModelReport or None
+        Critical constants and k_ij of a fugacity model, with their sources and the pairs
+        missing from the database (None for the ideal gas).
+    ln_phi : ndarray (..., ns) or None
+        ln φ of each species at the final composition [-] (0 for condensed species).
+    eos_flags : dict of str to ndarray of bool
+        Root flags of the cubic at the final state: ``"liquid_like"``, ``"three_roots"``,
+        ``"gas_metastable"`` (see :class:`eqconv.eos.FugacityResult`).
+    outer_iterations : ndarray or None
+        φ updates used at each point (fugacity models).
+    phase_present : dict of str to ndarray of bool
+        Reacting condensed species → True where it exists at equilibrium.
+    condensed_ln_activity : dict of str to ndarray
+        ln a of each reacting condensed species: 0 where present; where absent, the
+        activity it would have in equilibrium with the gas (≤ 0: it would not form).
+    species_data : tuple of Species
+        The species objects (for the data report and the gas-phase check).
+    gas_check : GasPhaseCheck or None
+        Condensation check run after the solve (None if it was skipped).
     """
 
     reactions: tuple[Reaction, ...]
@@ -76,6 +109,15 @@ class EquilibriumResult:
     standard_pressure: float
     element_balance_error: FloatArray
     atoms: tuple[dict[str, int], ...] = ()
+    gas_model: str = "ideal"
+    gas_model_report: GasModelReport | None = None
+    ln_phi: FloatArray | None = None
+    eos_flags: dict[str, NDArray[np.bool_]] = field(default_factory=dict)
+    outer_iterations: NDArray[np.int64] | None = None
+    phase_present: dict[str, NDArray[np.bool_]] = field(default_factory=dict)
+    condensed_ln_activity: dict[str, FloatArray] = field(default_factory=dict)
+    species_data: tuple[Species, ...] = ()
+    gas_check: GasPhaseCheck | None = None
 
     # ------------------------------------------------------------------ arrays
     @property
@@ -131,8 +173,56 @@ class EquilibriumResult:
 
     @property
     def iterations(self) -> NDArray[np.int64]:
-        """Newton iterations per point."""
+        """Newton iterations per point (summed over φ updates for a fugacity model)."""
         return self.solution.iterations
+
+    # ------------------------------------------------------------------ phases, gas model
+    def present(self, species: str) -> NDArray[np.bool_]:
+        """True where the pure condensed `species` exists at equilibrium (grid shape).
+
+        Raises
+        ------
+        InputError
+            If `species` is not a reacting condensed species of this result.
+        """
+        if species not in self.phase_present:
+            raise InputError(
+                f"{species!r} is not a reacting condensed species here; condensed species: "
+                f"{sorted(self.phase_present) or 'none'}"
+            )
+        return np.broadcast_to(self.phase_present[species], self.shape)
+
+    @property
+    def fugacity_coefficients(self) -> dict[str, FloatArray]:
+        """φ_i of each gas species at the equilibrium state [-] (1 for the ideal gas)."""
+        out = {}
+        for i, (k, ph) in enumerate(zip(self.species, self.phases, strict=True)):
+            if ph != "g":
+                continue
+            if self.ln_phi is None:
+                out[k] = np.where(self.converged, 1.0, np.nan)
+            else:
+                out[k] = np.exp(np.where(self.converged, self.ln_phi[..., i], np.nan))
+        return out
+
+    def gas_phase_check(self) -> GasPhaseCheck:
+        """Raoult's-law condensation check of the equilibrium gas (see
+        :func:`eqconv.equilibrium`): the stored one, or computed now (without a warning) if
+        the solve skipped it."""
+        if self.gas_check is not None:
+            return self.gas_check
+        from .phase_check import check_gas_phase
+
+        gas_sp = [s for s in self.species_data if s.phase == "g"]
+        return check_gas_phase(gas_sp, self.mole_fractions, self.T, self.P, warn=False)
+
+    def data_report(self) -> DataReport:
+        """Data of every species (reactions and inerts) with the gas-model report as notes."""
+        from .report import data_report
+
+        notes = [] if self.gas_model_report is None else self.gas_model_report.lines()
+        items: list[Reaction | Species] = [*self.species_data] or [*self.reactions]
+        return data_report(items, notes=notes)
 
     # ------------------------------------------------------------------ trade quantities
     def _check(self, key: str) -> None:
@@ -215,13 +305,16 @@ class EquilibriumResult:
         :data:`DIAGNOSTIC_REL` of the total amount) because K is large; *negligible*: the
         extent is below :data:`DIAGNOSTIC_REL` of the total amount and a product (or, in
         reverse, a reactant) stays at trace level because K is small (large); *blocked*: a
-        species it needs cannot be formed from this feed.
+        species it needs cannot be formed from this feed; *phase absent*: it involves a pure
+        condensed species that does not exist at this point (it would not form), so the
+        reaction cannot proceed and is not at equilibrium.
         """
         sol = self.solution
         n = sol.amounts
         tot = np.sum(np.abs(n), axis=-1)
         small = n <= DIAGNOSTIC_REL * tot[..., None]
         out = np.full((*self.shape, len(self.reactions)), "equilibrium", dtype="<U18")
+        absent = {k: ~np.broadcast_to(v, self.shape) for k, v in self.phase_present.items()}
         for j, rxn in enumerate(self.reactions):
             idx = [self.species.index(k) for k in rxn.keys]
             reac = [i for i, v in zip(idx, rxn.nu, strict=True) if v < 0]
@@ -235,6 +328,10 @@ class EquilibriumResult:
                 "equilibrium",
             )
         out[sol.blocked] = "blocked"
+        for j, rxn in enumerate(self.reactions):
+            for k in rxn.keys:
+                if k in absent:
+                    out[..., j] = np.where(absent[k], "phase absent", out[..., j])
         out[~self.converged] = "not converged"
         return out
 
@@ -261,6 +358,8 @@ class EquilibriumResult:
                     "negligible": "negligible: the extent is ~0 because K is so small "
                     "(or, in reverse, so large) that it cannot proceed",
                     "blocked": "blocked: a species it needs is absent and cannot form",
+                    "phase absent": "cannot proceed: a pure condensed species of it is "
+                    "absent here (it would not form)",
                     "not converged": "NOT CONVERGED",
                 }[st]
                 out.append(
@@ -286,6 +385,10 @@ class EquilibriumResult:
                 ),
                 ("negligible", "negligible (extent ~0: K too small to proceed)"),
                 ("blocked", "blocked (needs a species this feed cannot form)"),
+                (
+                    "phase absent",
+                    "not proceeding (a pure condensed species of it is absent: it would not form)",
+                ),
                 ("not converged", "NOT CONVERGED"),
             ):
                 sel = st_j == code
@@ -311,6 +414,11 @@ class EquilibriumResult:
             d[f"extent {j + 1} [mol] ({rxn.equation})"] = xi
             d[f"ln K {j + 1} [-]"] = self.ln_K[..., j]
             d[f"ln Q - ln K {j + 1} [-]"] = self.residuals[..., j]
+        for k, pres in self.phase_present.items():
+            d[f"present {k} [-]"] = np.broadcast_to(pres, self.shape)
+        if self.ln_phi is not None:
+            for k, phi in self.fugacity_coefficients.items():
+                d[f"phi {k} [-]"] = phi
         d["converged"] = self.converged
         return d
 

@@ -8,7 +8,9 @@
   and the target contour on the T–P plane;
 * :mod:`~eqconv.studies.adiabatic` — enthalpy balances, adiabatic lines and adiabatic
   equilibrium outlets;
-* :mod:`~eqconv.studies.staging` — intercooled multi-bed converters.
+* :mod:`~eqconv.studies.staging` — intercooled multi-bed converters;
+* :mod:`~eqconv.studies.carbon` — carbon-formation boundary of a reformer feed (minimum
+  steam-to-carbon ratio, carbon-free temperature range).
 
 xarray, pandas and dask are optional: they are imported only by the functions that need
 them, with an ``ImportError`` naming the extra to install.
@@ -23,6 +25,14 @@ from .adiabatic import (
     adiabatic_line,
     adiabatic_rise,
     mixture_enthalpy,
+)
+from .carbon import (
+    CarbonActivity,
+    CarbonLimitResult,
+    CarbonRangeResult,
+    carbon_activity,
+    carbon_free_temperatures,
+    minimum_steam_to_carbon,
 )
 from .errors import UnreachableTargetError
 from .export import (
@@ -52,6 +62,9 @@ from .targets import (
 
 __all__ = [
     "AdiabaticResult",
+    "CarbonActivity",
+    "CarbonLimitResult",
+    "CarbonRangeResult",
     "FeedParameter",
     "StagingResult",
     "TargetResult",
@@ -59,11 +72,14 @@ __all__ = [
     "adiabatic_equilibrium",
     "adiabatic_line",
     "adiabatic_rise",
+    "carbon_activity",
+    "carbon_free_temperatures",
     "conversion_contour",
     "equilibrium_conversion",
     "feed_ratio_for_conversion",
     "hydrogen_to_nitrogen",
     "inert_fraction",
+    "minimum_steam_to_carbon",
     "mixture_enthalpy",
     "oxygen_excess",
     "pressure_for_conversion",
