@@ -273,7 +273,14 @@ def _one_line_warning(
     file: TextIO | None = None,
     line: str | None = None,
 ) -> None:
-    print(f"eqconv: warning: {' '.join(str(message).split())}", file=sys.stderr)
+    text = " ".join(str(message).split())
+    if text in _SHOWN:  # the same warning from several steps of one run: say it once
+        return
+    _SHOWN.add(text)
+    print(f"eqconv: warning: {text}", file=sys.stderr)
+
+
+_SHOWN: set[str] = set()
 
 
 def main(argv: Sequence[str] | None = None) -> int:
@@ -286,7 +293,9 @@ def main(argv: Sequence[str] | None = None) -> int:
         return 2
     except SystemExit as exc:  # --help and --version print and exit 0
         return int(exc.code or 0)
+    _SHOWN.clear()
     with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ResourceWarning)  # from third-party file handles
         warnings.showwarning = _one_line_warning
         try:
             return int(args.func(args))

@@ -77,9 +77,10 @@ def write_result(
     from ..report import data_report
 
     say("writing tables")
-    report = data_report([*res.reactions, *res.species])
+    report = data_report([*res.reactions, *res.species], notes=_gas_model_notes(res))
     if opts.write_csv:
         text("data_report.csv", report.to_csv())
+        text("data_report.txt", report.to_text() + "\n")
         if res.conversion is not None:
             text("grid.csv", _grid_csv(res))
         if res.temperature_limits or res.pressure_limits or res.feed_ratio:
@@ -347,3 +348,18 @@ def _target_dict(tr: Any, at: tuple[str, FloatArray]) -> dict[str, Any]:
         "value": [None if not np.isfinite(v) else float(v) for v in np.ravel(value)],
         "reachable": [bool(v) for v in np.ravel(ok)],
     }
+
+
+def _gas_model_notes(res: Any) -> list[str]:
+    """Interaction parameters and missing pairs of the case's gas model, for the report."""
+    kind = res.case.gas
+    if kind == "ideal":
+        return ["gas model: ideal gas (fugacity coefficients 1)"]
+    from ..fugacity import eos_setup
+
+    species = list({sp.key: sp for r in res.reactions for sp in r.species}.values())
+    species += [sp for sp in res.species if sp.key not in {s.key for s in species}]
+    setup = eos_setup(kind, [s.key for s in species], [s.cas for s in species],
+                      [s.phase == "g" for s in species])
+    return [f"gas model: {kind}", *setup.report.lines()]
+
