@@ -2,9 +2,9 @@
 
 Private module. Feed patterns (which species are present) decide by linear programming which
 species can be formed at all; starts come from the combined reaction along an interior ray
-and one Gauss-Seidel sweep, or, for one feed on a large grid, from a table over
-c = Δn ln(P/p°) + Σν ln φ − ln K; Newton then runs in an abundance-adapted basis, with
-:mod:`eqconv._extent_robust` as the safety net.
+and Gauss-Seidel sweeps (the last ones in an abundance-adapted basis), or, for one feed on a
+large grid, from a table over c = Δn ln(P/p°) + Σν ln φ − ln K; Newton then runs in an
+abundance-adapted basis, with :mod:`eqconv._extent_robust` as the safety net.
 """
 
 from __future__ import annotations
@@ -25,6 +25,11 @@ BoolArray = NDArray[np.bool_]
 
 
 _PATTERNS: dict[tuple[bytes, tuple[int, ...], bytes], tuple[Any, Any, Any]] = {}
+#: Cold start: sweeps in the adapted basis after the first one, each only at the points
+#: where some reaction is still off by more than _RESWEEP in |ln Q − ln K| (a factor e^10);
+#: the others are left to Newton, which needs a few iterations from there anyway.
+_SWEEPS = 2
+_RESWEEP = 10.0
 
 
 def _feed_pattern(nu: FloatArray, present: BoolArray) -> tuple[FloatArray, BoolArray, FloatArray]:
@@ -104,22 +109,28 @@ def _cold_start(
     gconst: FloatArray,
     gas: BoolArray,
 ) -> FloatArray:
-    """Cold start: the combined reaction dᵀν along the ray n0 + t νᵀd, then one sweep.
+    """Cold start: the combined reaction dᵀν along the ray n0 + t νᵀd, then sweeps.
 
     G is convex along the ray and its slope there is the residual of the combined reaction,
     so a few single-reaction iterations give a strictly positive start of the right order
-    of magnitude even when K is 1e-100 (every product tiny) or 1e100. One Gauss-Seidel
-    sweep (each reaction alone to its rough equilibrium, the others frozen) follows. All
-    single-reaction moves keep every amount a sum of positive terms.
+    of magnitude even when K is 1e-100 (every product tiny) or 1e100. Gauss-Seidel sweeps
+    (each reaction alone to its rough equilibrium, the others frozen) follow: one over the
+    reactions as given, then up to :data:`_SWEEPS` more where a reaction is still far from
+    equilibrium, in the abundance-adapted basis of each point (:func:`_sweep_basis`). There
+    each of the scarcest species is made by one reaction only, so no reaction of the sweep
+    is held back by a trace that another reaction would first have to make: with CH4 + CO2,
+    a trace of H2 and no H2O, reforming and shift alone are each limited by a trace, while
+    their difference, dry reforming CH4 + CO2 = 2 CO + 2 H2, is limited by the CO2 only.
+    All single-reaction moves keep every amount a sum of positive terms.
     """
     d, never, _ = pattern
     react = np.any(nu != 0.0, axis=0)
 
-    def rough(v: FloatArray, lk: FloatArray, x: FloatArray) -> FloatArray:
+    def rough(v: FloatArray, lk: FloatArray, x: FloatArray, gc: FloatArray) -> FloatArray:
         gm = gas & (v != 0.0)
         if not (np.any(v > 0.0) and np.any(v < 0.0) and np.any(gm)):
             return x
-        lk = lk - gconst[:, gm] @ v[gm]  # folds ln(P/p°) and ln φ into ln K
+        lk = lk - gc[:, gm] @ v[gm]  # folds ln(P/p°) and ln φ into ln K
         y = _solve_one(v, lk, x, np.zeros(x.shape[0]), None, gas, 1e-3, 12)[1]
         ok = np.all(np.isfinite(y), axis=1) & np.all(y[:, react & ~never] > 0.0, axis=1)
         return np.where(ok[:, None], y, x)
@@ -128,13 +139,54 @@ def _cold_start(
         return _interior_start(nu, n0, d, never)
     x = n0.copy()
     if np.any(d != 0.0):
-        x = rough(d @ nu, lnK @ d, x)  # exact combination: conserves what ν conserves
+        x = rough(d @ nu, lnK @ d, x, gconst)  # exact combination: conserves what ν conserves
         bad = ~np.all(x[:, react] > 0.0, axis=1)
         if np.any(bad):
             x[bad] = _interior_start(nu, n0[bad], d, never)
-    for j in range(nu.shape[0]):
-        x = rough(nu[j], lnK[:, j], x)
+    for j in range(nu.shape[0]):  # one sweep over the reactions as given
+        x = rough(nu[j], lnK[:, j], x, gconst)
+    bases = _bases(nu, gas)
+    todo = np.arange(x.shape[0])
+    for _ in range(_SWEEPS if len(bases) > 1 else 0):
+        g, _ = _gas_terms(x[todo], gas, react, gconst[todo])
+        near = np.abs(g @ nu.T - lnK[todo]).max(axis=1) <= _RESWEEP  # False for NaN
+        todo = todo[~near]
+        if todo.size == 0:
+            break
+        ids = _sweep_basis(bases, x[todo][:, react])
+        for b in np.unique(ids).tolist():
+            rows = todo[ids == b]
+            nub = _basis_nu(bases[b], react)
+            lkb = lnK[rows] @ bases[b].minv.T  # r' = M⁻¹ r, so ln K' = M⁻¹ ln K
+            xb, gb = x[rows], gconst[rows]
+            for j in range(nub.shape[0]):
+                xb = rough(nub[j], lkb[:, j], xb, gb)
+            x[rows] = xb
     return x
+
+
+def _sweep_basis(bases: list[_Basis], xr: FloatArray) -> NDArray[np.intp]:
+    """Per point, the basis whose pivots have the smallest Σ ln n (xr: reacting amounts)."""
+    L = np.log(np.maximum(xr, 1e-300)).T  # (n_react, m); floor: 0·(−inf) would give NaN
+    wts = np.array([B.pick for B in bases]) @ L
+    ids = np.zeros(xr.shape[0], dtype=np.intp)
+    best = wts[0].copy()
+    for b in range(1, len(bases)):
+        better = wts[b] < best
+        ids[better] = b
+        np.minimum(best, wts[b], out=best)
+    return ids
+
+
+def _basis_nu(B: _Basis, react: BoolArray) -> FloatArray:
+    """The basis reactions ν' (nr, ns) on all species, exactly 1 and 0 on the pivots."""
+    nr = B.piv.size
+    nup = np.zeros((nr, int(np.count_nonzero(react))))
+    nup[:, B.piv] = np.eye(nr)
+    nup[:, B.rest] = B.rest_t.T
+    out = np.zeros((nr, react.size))
+    out[:, react] = nup
+    return out
 
 
 def _solve_small(
@@ -458,7 +510,9 @@ def _multi_block(
             nu, basis, never, xb, n0[bad], lnK[bad], gconst[bad], gas, blk, 0.5 * tol, max_iter
         )
         x[bad], ok[bad], it[bad] = xb, okb, it[bad] + itb
-        g, _ = _gas_terms(np.where(np.isfinite(xb), xb, 1.0), gas, react, gconst[bad])
+        # species fixed at zero stay out of ln a (0·ln 0 would make every residual NaN)
+        xf = np.where(np.isfinite(xb), xb, 1.0)
+        g, _ = _gas_terms(xf, gas, react & ~never, gconst[bad])
         rb = g @ nu.T - lnK[bad]
         rb[:, blk] = 0.0
         res[bad] = rb

@@ -3,7 +3,8 @@
 Private module. At every iterate each point's reaction basis is re-chosen so that the least
 abundant species are pivots (each made by one reaction only); pivots that fall move
 multiplicatively, the step keeps every amount positive (fraction to the boundary) and an
-Armijo test on G/RT guards it.
+Armijo test on G/RT guards it. G/RT includes the inert gas species (through −n_inert ln n_gas),
+so that its slope along every reaction is exactly ln Q − ln K.
 """
 
 from __future__ import annotations
@@ -121,13 +122,19 @@ def _solve_robust(
     kappa = lnK @ Lp  # (m, ns): ln K · ξ(n) = κ · (n − n0)
     lnK_eff = lnK @ basis
     gmask = (gas & react).astype(float)
+    inert = (gas & ~react).astype(float)  # gas species that no allowed extent changes
     conv_all = np.zeros(m, dtype=bool)
     iters = np.zeros(m, dtype=np.int64)
     idx = np.arange(m)
     stall = np.zeros(m, dtype=int)
 
-    def phi(nn: FloatArray, g: FloatArray, kap: FloatArray, nn0: FloatArray) -> FloatArray:
-        return np.sum(nn * g * gmask - kap * (nn - nn0), axis=1)
+    def phi(
+        nn: FloatArray, g: FloatArray, ng: FloatArray, kap: FloatArray, nn0: FloatArray
+    ) -> FloatArray:
+        # G/RT up to a constant: Σ_reacting n_i ln a_i − n_inert ln n_gas − ln K·ξ. The inert
+        # gas term makes ∂φ/∂ξ equal the residual when Δn ≠ 0; without it the slope is off
+        # by Δn·y_inert and the Armijo test rejects good steps near the solution.
+        return np.sum(nn * g * gmask - kap * (nn - nn0), axis=1) - (nn @ inert) * np.log(ng)
 
     for it in range(1, max_iter + 1):
         x, x0, gc, kap = n[idx], n0[idx], gconst[idx], kappa[idx]
@@ -170,9 +177,10 @@ def _solve_robust(
         with np.errstate(divide="ignore", invalid="ignore"):
             lim = np.where(nonpiv & (dn_lin < 0.0), -_FRACTION_TO_BOUNDARY * x / dn_lin, 1.0)
         alpha = np.where(ok, np.minimum(1.0, lim.min(axis=1)), 0.0)
-        f0 = phi(x, g, kap, x0)
+        f0 = phi(x, g, ng, kap, x0)
         pred = np.sum(rp * dxi, axis=1)
-        scale = np.sum(np.abs(x * g * gmask) + np.abs(kap * (x - x0)), axis=1) + 1e-300
+        scale = np.sum(np.abs(x * g * gmask) + np.abs(kap * (x - x0)), axis=1)
+        scale += np.abs((x @ inert) * np.log(ng)) + 1e-300
         tiny = np.abs(pred) <= 1e-12 * scale
         accepted = np.zeros(idx.size, dtype=bool)
         newx = x.copy()
@@ -189,8 +197,8 @@ def _solve_robust(
             xt[np.arange(todo.size)[:, None], piv[todo]] = newp
             xt[:, never] = 0.0
             feas = np.all(np.where(react, xt > 0.0, True), axis=1) & np.all(np.isfinite(xt), axis=1)
-            gt, _ = _gas_terms(np.where(feas[:, None], xt, x[todo]), gas, react, gc[todo])
-            ft = phi(xt, gt, kap[todo], x0[todo])
+            gt, ngt = _gas_terms(np.where(feas[:, None], xt, x[todo]), gas, react, gc[todo])
+            ft = phi(xt, gt, ngt, kap[todo], x0[todo])
             good = feas & ((ft <= f0[todo] + 1e-4 * alpha[todo] * pred[todo]) | tiny[todo])
             newx[todo[good]] = xt[good]
             accepted[todo[good]] = True

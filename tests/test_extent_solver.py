@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-from hypothesis import given, settings
+from hypothesis import example, given, settings
 from hypothesis import strategies as st
 
 from eqconv.errors import DependentReactionsError, InputError
@@ -31,12 +31,34 @@ REFORM = np.array(
     ]
 )
 DEHYD = np.array([[-1.0, 1.0, 1.0, 0.0]])  # C2H6 C2H4 H2 N2 (Δn = +1)
+METHANOL = np.array(  # CH4 H2O CO H2 CO2 CH3OH N2: reforming, shift, CO + 2 H2 = CH3OH
+    [
+        [-1.0, -1.0, 1.0, 3.0, 0.0, 0.0, 0.0],
+        [0.0, -1.0, -1.0, 1.0, 1.0, 0.0, 0.0],
+        [0.0, 0.0, -1.0, -2.0, 0.0, 1.0, 0.0],
+    ]
+)
+METHANOL_CO2 = np.array(  # same species: CO2 + H2 = CO + H2O, CO2 + 3 H2 = CH3OH + H2O,
+    [  # CO + 3 H2 = CH4 + H2O
+        [0.0, 1.0, 1.0, -1.0, -1.0, 0.0, 0.0],
+        [0.0, 1.0, 0.0, -3.0, -1.0, 1.0, 0.0],
+        [1.0, 1.0, -1.0, -3.0, 0.0, 0.0, 0.0],
+    ]
+)
 # atom matrices (rows: elements) of the species orders, to check element balances
 ATOMS = {
     "shift": np.array([[1, 0, 1, 0, 0], [1, 1, 2, 0, 0], [0, 2, 0, 2, 0], [0, 0, 0, 0, 2]]),
     "nh3": np.array([[2, 0, 1, 0], [0, 2, 3, 0], [0, 0, 0, 1]]),
     "reform": np.array(
         [[1, 0, 1, 0, 1, 0], [0, 1, 1, 0, 2, 0], [4, 2, 0, 2, 0, 0], [0, 0, 0, 0, 0, 2]]
+    ),
+    "methanol": np.array(
+        [
+            [1, 0, 1, 0, 1, 1, 0],
+            [0, 1, 1, 0, 2, 1, 0],
+            [4, 2, 0, 2, 0, 4, 0],
+            [0, 0, 0, 0, 0, 0, 2],
+        ]
     ),
 }
 
@@ -152,6 +174,9 @@ def test_ammonia_properties(lnK: list[float], lnP: float, n: tuple[float, ...]) 
     lnP=st.floats(-5.0, 7.0),
     n=st.tuples(FEEDS, FEEDS, TRACE, TRACE, TRACE, FEEDS),
 )
+# found by a clean CI run: CH4 + N2 with a trace of CO2, 1e-30 H2 and no water (see
+# test_dry_reforming_route_from_trace_oxidant below)
+@example(lnK=[(-28.0, 0.0)], lnP=0.0, n=(1.0, 0.0, 0.0, 1e-30, 9.384013705607426e-07, 1.0))
 def test_reforming_and_shift_properties(
     lnK: list[tuple[float, float]], lnP: float, n: tuple[float, ...]
 ) -> None:
@@ -280,6 +305,38 @@ def test_blocked_reaction_is_reported_not_solved() -> None:
     assert_solution(sol, nu, [1.0, 0.0, 0.0, 1.0, 1.0, 0.0])
 
 
+def test_blocked_reactions_beside_live_ones() -> None:
+    # CH4 H2O CO H2 CO2 C2H6 C2H4 N2 with reforming, shift, 2 CH4 = C2H6 + H2 and
+    # C2H6 = C2H4 + H2, fed without oxygen: the first two are blocked, the C2 pair is solved.
+    # (The residual of the live pair used to come back NaN, from 0·ln 0 of the O species.)
+    nu = np.array(
+        [
+            [-1.0, -1.0, 1.0, 3.0, 0.0, 0.0, 0.0, 0.0],
+            [0.0, -1.0, -1.0, 1.0, 1.0, 0.0, 0.0, 0.0],
+            [-2.0, 0.0, 0.0, 1.0, 0.0, 1.0, 0.0, 0.0],
+            [0.0, 0.0, 0.0, 1.0, 0.0, -1.0, 1.0, 0.0],
+        ]
+    )
+    atoms = np.array(
+        [
+            [1, 0, 1, 0, 1, 2, 2, 0],
+            [0, 1, 1, 0, 2, 0, 0, 0],
+            [4, 2, 0, 2, 0, 6, 4, 0],
+            [0, 0, 0, 0, 0, 0, 0, 2],
+        ]
+    )
+    n0 = np.array([1.0, 0.0, 0.0, 0.1, 0.0, 0.0, 0.0, 1.0])
+    lnK = np.array([[1.0, 0.5, -5.0, -2.0], [10.0, 0.0, -20.0, 3.0]])
+    lnP = np.array([0.0, 2.0])
+    sol = solve_extents(nu, lnK, n0, lnP)
+    assert_solution(sol, nu, n0, atoms)
+    assert np.all(sol.blocked == [True, True, False, False])
+    assert np.all(sol.amounts[:, [1, 2, 4]] == 0.0)
+    assert np.all(sol.amounts[:, [5, 6]] > 0.0)
+    r = lnQ_minus_lnK(nu, sol.amounts, lnK, lnP)[:, 2:]
+    assert np.abs(r).max() <= 2 * TOL
+
+
 def test_species_formed_only_by_a_combination() -> None:
     # dry feed CH4 + CO2: neither reaction can start alone, their difference (dry reforming)
     # can; every species is then formed and both reactions reach equilibrium
@@ -287,6 +344,85 @@ def test_species_formed_only_by_a_combination() -> None:
     sol = solve_extents(REFORM, [[np.log(10.0), 0.0]], n0, 0.0)
     assert_solution(sol, REFORM, n0, ATOMS["reform"])
     assert np.all(sol.amounts[0, :5] > 0.0)
+
+
+def lnQ_minus_lnK(nu, n, lnK, lnP):
+    """ln Q − ln K of each reaction recomputed from the amounts (ideal gas, all species gas).
+
+    Species at exactly zero enter as ln 1 = 0; they only belong to blocked reactions, whose
+    entries the callers skip.
+    """
+    y = n / n.sum(axis=-1, keepdims=True)
+    lny = np.log(np.where(y > 0.0, y, 1.0))
+    return lny @ nu.T + np.multiply.outer(np.asarray(lnP), nu.sum(axis=1)) - lnK
+
+
+def test_dry_reforming_route_from_trace_oxidant() -> None:
+    # Regression (clean CI run, hypothesis 6.170): CH4 + N2 with 9.4e-7 CO2, 1e-30 H2 and no
+    # water. Reforming and shift alone are each held back by a trace (no H2O; 1e-30 H2); the
+    # route is their difference, dry reforming CH4 + CO2 = 2 CO + 2 H2 (K = K1/K2 = e^-28),
+    # plus reverse shift. The solver used to stop with converged=False here.
+    x = 9.384013705607426e-07
+    n0 = np.array([1.0, 0.0, 0.0, 1e-30, x, 1.0])
+    sol = solve_extents(REFORM, [[-28.0, 0.0]], [n0], [0.0])
+    assert_solution(sol, REFORM, n0, ATOMS["reform"])
+    n = sol.amounts[0]
+    assert np.abs(lnQ_minus_lnK(REFORM, n, np.array([-28.0, 0.0]), 0.0)).max() <= 2 * TOL
+    # derived here, to leading order in x: the CO2 is almost all converted, CO ≈ H2 ≈ 2x,
+    # y_CH4 ≈ 1/2, n_gas ≈ 2 at 1 bar, so n_CO2 = 4 x^4 e^28; shift at K = 1 with CO ≈ H2
+    # gives n_H2O ≈ n_CO2 (relative corrections are of order 1e-5)
+    assert n[2] == pytest.approx(2 * x, rel=1e-4)
+    assert n[3] == pytest.approx(2 * x, rel=1e-4)
+    assert n[4] == pytest.approx(4 * x**4 * np.exp(28.0), rel=1e-4)
+    assert n[1] == pytest.approx(n[4], rel=1e-4)
+
+
+@pytest.mark.parametrize("oxidant", [4, 1], ids=["trace CO2", "trace H2O"])
+@pytest.mark.parametrize("lnP", [-2.0, 0.0, 4.0])
+def test_trace_oxidant_family(oxidant: int, lnP: float) -> None:
+    # the family around the CI point: CH4 + N2, trace H2 1e-30…1e-6, trace CO2 (or H2O)
+    # 1e-9…1e-3 and nothing else; ln K1 from −60 to +10, ln K2 in {−5, 0, 5}; one vectorized
+    # call on the whole (H2, oxidant, K1, K2) grid
+    h2 = np.array([1e-30, 1e-24, 1e-18, 1e-12, 1e-6])
+    ox = np.array([1e-9, 1e-7, 1e-5, 1e-3])
+    n0 = np.zeros((h2.size, ox.size, 1, 1, 6))
+    n0[..., 0] = n0[..., 5] = 1.0
+    n0[..., 3] = h2[:, None, None, None]
+    n0[..., oxidant] = ox[None, :, None, None]
+    lnK = np.stack(np.meshgrid(np.linspace(-60.0, 10.0, 15), [-5.0, 0.0, 5.0], indexing="ij"), -1)
+    sol = solve_extents(REFORM, lnK, n0, lnP)
+    assert sol.shape == (5, 4, 15, 3)
+    assert_solution(sol, REFORM, n0, ATOMS["reform"])
+    assert np.abs(lnQ_minus_lnK(REFORM, sol.amounts, lnK, lnP)).max() <= 2 * TOL
+    assert np.all(sol.amounts[..., :5] > 0.0)  # every species is formed
+
+
+def test_safety_net_alone_converges_from_a_trace_limited_start() -> None:
+    # The convex safety net must converge by itself, whatever start the fast path leaves.
+    # Start: half-way along the ray of the feed pattern's combined reaction (here reverse
+    # shift, held back by the 1e-30 H2), i.e. every product near 1e-30. Its line search
+    # uses G/RT, including the −n_inert ln n_gas term of the N2: without that term the
+    # slope of the merit function differs from ln Q − ln K by Δn·y_N2 and good steps near
+    # the solution were refused (the point stalled).
+    from eqconv._extent_multi import _feed_pattern, _interior_start
+    from eqconv._extent_robust import _solve_robust
+
+    lnK1 = np.linspace(-60.0, 10.0, 8)
+    for oxidant in (4, 1):
+        n0 = np.zeros((3, 3, lnK1.size, 6))
+        n0[..., 0] = n0[..., 5] = 1.0
+        n0[..., 3] = np.array([1e-30, 1e-18, 1e-6])[:, None, None]
+        n0[..., oxidant] = np.array([1e-9, 1e-6, 1e-3])[None, :, None]
+        n0 = n0.reshape(-1, 6)
+        lnK = np.stack([np.tile(lnK1, 9), np.zeros(n0.shape[0])], axis=-1)
+        d, never, basis = _feed_pattern(REFORM, n0[0] > 0.0)
+        x = _interior_start(REFORM, n0, d, never)
+        gas, blocked = np.ones(6, dtype=bool), np.zeros(2, dtype=bool)
+        zero = np.zeros_like(n0)
+        n, ok, _ = _solve_robust(REFORM, basis, never, x, n0, lnK, zero, gas, blocked, TOL / 2, 200)
+        assert ok.all(), f"{np.count_nonzero(~ok)} of {ok.size} points stalled"
+        assert np.abs(lnQ_minus_lnK(REFORM, n, lnK, 0.0)).max() <= TOL
+        np.testing.assert_allclose(n @ ATOMS["reform"].T, n0 @ ATOMS["reform"].T, rtol=1e-12)
 
 
 def test_dependent_reactions_are_explained() -> None:
@@ -385,3 +521,49 @@ def test_large_uniform_grid_uses_the_start_tables() -> None:
     small = solve_extents(REFORM, lnK2[::17], [1.0, 3.0, 0.0, 0.0, 0.0, 0.0], lnP[:, ::13])
     assert_solution(big, REFORM, [1.0, 3.0, 0.0, 0.0, 0.0, 0.0], ATOMS["reform"])
     np.testing.assert_allclose(big.amounts[::17, ::13], small.amounts, rtol=1e-9)
+
+
+# ---------------------------------------------------------------------------- seeded stress
+def random_feeds(rng: np.random.Generator, m: int, ns: int, p_zero: float) -> np.ndarray:
+    """Feeds (m, ns): each amount 0, a trace 1e-30…1e-6 mol or 1e-3…10 mol (log-uniform)."""
+    u = rng.random((m, ns))
+    trace = 10.0 ** rng.uniform(-30.0, -6.0, (m, ns))
+    ordinary = 10.0 ** rng.uniform(-3.0, 1.0, (m, ns))
+    n0 = np.where(u < p_zero, 0.0, np.where(u < p_zero + 0.3, trace, ordinary))
+    n0[n0.sum(axis=1) <= 0.0, 0] = 1.0
+    return n0
+
+
+@pytest.mark.parametrize(
+    ("nu", "atoms", "lnK_max", "m"),
+    [
+        (REFORM, ATOMS["reform"], 100.0, 3000),
+        (NH3_2, ATOMS["nh3"], 100.0, 3000),
+        # three reactions: ln K within ±60 here. With ±100 and 1e-30 traces about one point
+        # in 1e4 has an equilibrium amount below the smallest normal double (e.g. CH4 near
+        # 1e-317 mol) and is, correctly, reported as not converged.
+        (METHANOL, ATOMS["methanol"], 60.0, 1500),
+        (METHANOL_CO2, ATOMS["methanol"], 60.0, 1500),
+    ],
+    ids=["reforming+shift", "ammonia", "methanol", "methanol-from-CO2"],
+)
+def test_seeded_random_stress_has_no_failures(
+    nu: np.ndarray, atoms: np.ndarray, lnK_max: float, m: int
+) -> None:
+    # thousands of random feeds (every feed pattern, zeros and traces down to 1e-30 mol per
+    # species), random ln K and ln(P/p°), all in one vectorized call: every point must
+    # converge, close its element balances and meet ln Q = ln K when recomputed here
+    rng = np.random.default_rng(20240611)
+    nr, ns = nu.shape
+    n0 = random_feeds(rng, m, ns, p_zero=0.3)
+    lnK = rng.uniform(-lnK_max, lnK_max, (m, nr))
+    lnP = rng.uniform(-5.0, 7.0, m)
+    sol = solve_extents(nu, lnK, n0, lnP)
+    assert_solution(sol, nu, n0, atoms)
+    r = lnQ_minus_lnK(nu, sol.amounts, lnK, lnP)
+    assert np.abs(np.where(sol.blocked, 0.0, r)).max() <= 2 * TOL
+    # one feed for a large grid: the start-table path (>= 8192 points for several reactions)
+    for feed in random_feeds(rng, 3, ns, p_zero=0.15):
+        lnK = rng.uniform(-lnK_max, lnK_max, (9000, nr))
+        sol = solve_extents(nu, lnK, feed, rng.uniform(-5.0, 7.0, 9000))
+        assert_solution(sol, nu, feed, atoms)
