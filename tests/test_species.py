@@ -106,8 +106,8 @@ def test_isomers_by_cas_keep_distinct_labels() -> None:
 
 
 def test_unknown_data_source() -> None:
-    with pytest.raises(InputError, match="chemsep"):
-        get_species("NH3", data="chemsep")
+    with pytest.raises(InputError, match="handbook-x"):
+        get_species("NH3", data="handbook-x")
 
 
 # ------------------------------------------------------------------ provenance

@@ -32,7 +32,7 @@ NH3_FEED = {"N2": 0.24, "H2": 0.72, "Ar": 0.04}
 # NIST-JANAF Thermochemical Tables, 4th ed. (M. W. Chase, 1998), ideal gas at 1 bar, as
 # printed: ΔfH°(298.15 K) and H − H(298.15 K) at 600 ... 1000 K, all in kJ/mol.
 # Tables O-034 (SO2), O-058 (SO3), O-029 (O2), N-023 (N2). Copied into the test so that the
-# hand calculation below uses nothing but the printed table; test_table_transcription
+# hand calculation below uses nothing but the printed table; test_table_copy_matches_janaf
 # checks the copy against the `janaf` package.
 JANAF_T = np.array([600.0, 700.0, 800.0, 900.0, 1000.0])
 JANAF_H_MINUS_H298 = {
@@ -61,7 +61,7 @@ def _hand_H(n: dict[str, float], T: float) -> float:
     )
 
 
-def test_table_transcription() -> None:
+def test_table_copy_matches_janaf() -> None:
     janaf = pytest.importorskip("janaf")
     for s, index in JANAF_INDEX.items():
         df = janaf.Table(index).df
