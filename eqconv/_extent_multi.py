@@ -448,24 +448,25 @@ def _table_start(
     lo, h, xn, okn = table
     nr = lo.size
     K = round(xn.shape[0] ** (1.0 / nr))
-    i, tau = [], []
+    base = np.zeros(c.shape[0], dtype=np.intp)  # node of the lower corner of each cell
+    wts = []  # (weight of the lower node, of the upper node) along each axis
     for j in range(nr):
         pos = c[:, j] - lo[j]
         pos /= h[j]
         np.clip(pos, 0.0, K - 1.0, out=pos)
         ij = np.minimum(pos.astype(np.intp), K - 2)
-        i.append(ij)
-        tau.append(pos - ij)
+        base *= K
+        base += ij
+        tau = pos - ij
+        wts.append((1.0 - tau, tau))
     xt = np.ascontiguousarray(xn.T)
     start = np.zeros((xn.shape[1], c.shape[0]))
     ok = np.ones(c.shape[0], dtype=bool)
     for corner in itertools.product((0, 1), repeat=nr):
-        node = np.zeros(c.shape[0], dtype=np.intp)
-        w = np.ones(c.shape[0])
-        for j, b in enumerate(corner):
-            node *= K
-            node += i[j] + b
-            w *= tau[j] if b else 1.0 - tau[j]
+        node = base + int(np.array(corner) @ K ** np.arange(nr - 1, -1, -1))
+        w = wts[0][corner[0]]
+        for j in range(1, nr):
+            w = w * wts[j][corner[j]]
         start += w * xt.take(node, axis=1)
         ok &= okn[node]
     return start.T, ok

@@ -66,16 +66,17 @@ def _one_setup(nu: FloatArray, n0: FloatArray, gas: BoolArray) -> dict[str, Any]
     }
 
 
-def _one_eval(
+def _one_f(
     k: dict[str, Any], u: FloatArray, W: Any, K0: Any, c: Any, slack: dict[int, Any]
-) -> tuple[FloatArray, FloatArray]:
-    """f(u) = ln Q − ln K and df/du of one reaction at logit ``u``."""
+) -> tuple[FloatArray, tuple[Any, ...]]:
+    """f(u) = ln Q − ln K of one reaction at logit ``u``, and the terms df/du reuses."""
     e = np.exp(-u)
     s = e + 1.0
     np.divide(1.0, s, out=s)  # σ(u)
     xp = W * s  # ξ − ξ_lo
     xr = e * xp  # ξ_hi − ξ
     dn = k["dn"]
+    ng = None
     if dn != 0.0:
         ng = xp * k["Sp"]
         ng += K0
@@ -84,23 +85,42 @@ def _one_eval(
         f = np.log(ng)
         f *= -dn
         f += c
-        curv = np.divide(-(dn * dn), ng)
     else:
         f = np.zeros_like(u) + c
-        curv = np.zeros_like(u)
     if k["Vp"]:
         f += k["Vp"] * np.log(xp)
-        curv += k["Vp"] / xp
     if k["Vr"]:
         f += k["Vr"] * np.log(xr)
-        curv -= k["Vr"] / xr
+    xs = []
     for v, isprod, i in k["terms"]:
         x = (xp if isprod else xr) + slack[i]
         f += v * np.log(x)
+        xs.append((v, x))
+    return f, (s, xp, xr, ng, xs)
+
+
+def _one_df(k: dict[str, Any], u: FloatArray, parts: tuple[Any, ...]) -> FloatArray:
+    """df/du of one reaction from the terms of :func:`_one_f` at the same ``u``."""
+    s, xp, xr, ng, xs = parts
+    dn = k["dn"]
+    curv = np.divide(-(dn * dn), ng) if ng is not None else np.zeros_like(u)
+    if k["Vp"]:
+        curv += k["Vp"] / xp
+    if k["Vr"]:
+        curv -= k["Vr"] / xr
+    for v, x in xs:
         curv += abs(v) / x
     curv *= xr
     curv *= s  # df/du = W σ(u) σ(−u) d(ln Q)/dξ
-    return f, curv
+    return curv
+
+
+def _one_eval(
+    k: dict[str, Any], u: FloatArray, W: Any, K0: Any, c: Any, slack: dict[int, Any]
+) -> tuple[FloatArray, FloatArray]:
+    """f(u) = ln Q − ln K and df/du of one reaction at logit ``u``."""
+    f, parts = _one_f(k, u, W, K0, c, slack)
+    return f, _one_df(k, u, parts)
 
 
 def _one_c(
@@ -217,11 +237,17 @@ def _solve_one(
         if idx.size == 0:
             break
         u = st["u"]
-        f, df = _one_eval(
+        f, parts = _one_f(
             k, u, st["W"], st["K0"], st["c"], {i: st["s", i] for i in k["live_slack"]}
         )
         new = np.abs(f) <= tol
         new &= live
+        if idx.size == m and np.all(new):  # every point at once (typical from the table)
+            done[:] = True
+            f_out, u_out = f, u
+            iters[:] = it
+            idx = idx[:0]
+            break
         if np.any(new):
             pts = idx[new]
             done[pts] = True
@@ -230,6 +256,7 @@ def _solve_one(
             if not np.any(live):
                 idx = idx[live]
                 break
+        df = _one_df(k, u, parts)  # not needed once every point has converged
         with np.errstate(divide="ignore", invalid="ignore"):
             step = f / df
         if it < plain:

@@ -220,7 +220,11 @@ def _solve_chunk(
         lam1, nu1 = lam.copy(), nu.copy()
         lnT = prob.Ared @ lam + nu - gT  # (nS, m)
         # trace check in the max-min component basis: a rigorous bound, then exactly
-        score = lnT[prob.bases].min(axis=1)  # (nb, m)
+        score = np.empty((len(prob.bases), m))  # (nb, m): smallest ln n of each basis
+        for k_, basis in enumerate(prob.bases.tolist()):
+            np.minimum(lnT[basis[0]], lnT[basis[-1]], out=score[k_])
+            for i_ in basis[1:-1]:
+                np.minimum(score[k_], lnT[i_], out=score[k_])
         bid = np.argmax(score, axis=0).astype(np.intp)
         with np.errstate(over="ignore", invalid="ignore"):
             n = np.exp(lnT)
@@ -382,7 +386,7 @@ def minimize_gibbs(
     lnn, x, total = out["lnn"], out["x"], out["total"]
     lnn[~ok], x[~ok], total[~ok] = np.nan, np.nan, np.nan
     integral = bool(np.all(A == np.round(A)))
-    full_nu = independent_reactions(A.astype(np.int64) if integral else A, components="first")
+    full_nu = reactions_of(A.astype(np.int64) if integral else A, "first")
     return GibbsSolution(
         amounts=np.exp(lnn).reshape(*batch, ns),
         ln_amounts=lnn.reshape(*batch, ns),
@@ -398,6 +402,23 @@ def minimize_gibbs(
         tol=float(tol),
         balance_tol=float(balance_tol),
     )
+
+
+_NU_CACHE: dict[tuple[str, tuple[int, ...], bytes, str], NDArray[np.int64]] = {}
+
+
+def reactions_of(A: NDArray[Any], components: str) -> NDArray[np.int64]:
+    """:func:`eqconv.reaction_basis.independent_reactions` of `A`, cached by its contents.
+
+    The exact (rational) elimination costs milliseconds; repeated calls with the same atom
+    matrix get a copy of the stored set.
+    """
+    key = (A.dtype.str, A.shape, A.tobytes(), components)
+    if key not in _NU_CACHE:
+        if len(_NU_CACHE) > 64:
+            _NU_CACHE.clear()
+        _NU_CACHE[key] = independent_reactions(A, components=components)
+    return _NU_CACHE[key].copy()
 
 
 def _as_float(x: ArrayLike, name: str) -> FloatArray:
@@ -579,11 +600,8 @@ def _solve_points(
                 s0 = pos // prev
                 s1 = np.minimum(s0 + 1, len(vs) - 1)
                 w = np.where(oks[s1] > 0, (pos % prev) / prev, 0.0)
-                warm = (
-                    ls[:, s0] + w * (ls[:, s1] - ls[:, s0]),
-                    vs[s0] + w * (vs[s1] - vs[s0]),
-                    oks[s0] > 0,
-                )
+                l0, v0 = ls[:, s0], vs[s0]
+                warm = (l0 + w * (ls[:, s1] - l0), v0 + w * (vs[s1] - v0), oks[s0] > 0)
             res = run(idx, warm)
             iters[pos] += res["iters"]
             if stride > 1:

@@ -30,9 +30,9 @@ from ._validate import as_amount, as_pressure, as_temperature
 from .constants import P_BAR
 from .errors import ConvergenceError, InputError
 from .extent_solver import ExtentSolution
-from .gibbs import GibbsSolution, minimize_gibbs
+from .gibbs import GibbsSolution, minimize_gibbs, reactions_of
 from .reaction import Reaction
-from .reaction_basis import atom_matrix, independent_reactions
+from .reaction_basis import atom_matrix
 from .result import EquilibriumResult
 from .species import Species, get_species
 
@@ -95,7 +95,7 @@ def _as_result(
     """Express the state through an independent reaction set of the species."""
     keys = tuple(s.key for s in sps)
     A, _ = atom_matrix([s.atoms for s in sps])
-    nu = independent_reactions(A).astype(float)  # "auto": the smallest coefficients
+    nu = reactions_of(np.asarray(A), "auto").astype(float)  # the smallest coefficients
     rxns = tuple(
         Reaction({k: c for k, c in zip(keys, row, strict=True) if c}, species=sps) for row in nu
     )
@@ -103,12 +103,20 @@ def _as_result(
     nr = len(nu)
     n = np.broadcast_to(sol.amounts, (*shape, len(keys)))
     extents = (n - n0) @ np.linalg.pinv(nu) if nr else np.zeros((*shape, 0))
-    blocked = (~np.broadcast_to(sol.present, n.shape).astype(bool))[..., None, :] & (nu != 0)
-    blocked = np.any(blocked, axis=-1)
+    present = np.broadcast_to(sol.present, n.shape)
+    # residual of reaction j: Σ_i ν_ji μ_i/(R T) over its species, summed in species order;
+    # zero where it needs a species that cannot be present (blocked)
+    blocked = np.zeros((*shape, nr), dtype=bool)
+    residual = np.zeros((*shape, nr))
     with np.errstate(invalid="ignore"):
-        ln_x = sol.ln_amounts - np.log(sol.total)[..., None]
-        terms = np.where(nu != 0, (mu0 + lnP[..., None] + ln_x)[..., None, :] * nu, 0.0)
-        residual = np.where(blocked, 0.0, terms.sum(axis=-1))
+        mu = mu0 + lnP[..., None]
+        mu += sol.ln_amounts - np.log(sol.total)[..., None]
+        for j in range(nr):
+            acc = residual[..., j]
+            for i in np.flatnonzero(nu[j]):
+                acc += mu[..., i] * nu[j, i]
+                blocked[..., j] |= ~present[..., i]
+        residual[blocked] = 0.0
     ext = ExtentSolution(
         extents=np.where(sol.converged[..., None], extents, np.nan),
         amounts=n,
@@ -122,9 +130,9 @@ def _as_result(
         reactions=rxns,
         species=keys,
         phases=tuple(s.phase for s in sps),
-        T=np.broadcast_to(T, shape).copy(),
-        P=np.broadcast_to(P, shape).copy(),
-        feed={k: n0[..., i] for i, k in enumerate(keys)},
+        T=np.broadcast_to(T, shape),
+        P=np.broadcast_to(P, shape),
+        feed={k: np.broadcast_to(n0[..., i], shape) for i, k in enumerate(keys)},
         solution=ext,
         ln_K=np.broadcast_to(-(mu0 @ nu.T), (*shape, nr)),
         standard_pressure=P_BAR,
@@ -205,8 +213,12 @@ def gibbs_equilibrium(
     shape = np.broadcast_shapes(Tarr.shape, Parr.shape, *(np.shape(v) for v in fed.values()))
     A, _ = atom_matrix([s.atoms for s in sps])
     mu0 = np.stack([np.broadcast_to(s.mu0_over_RT(Tarr), Tarr.shape) for s in sps], axis=-1)
+    # the feed keeps its own (often scalar) shape: minimize_gibbs resolves each distinct
+    # feed row once, not once per grid point
+    fshape = np.broadcast_shapes(*(np.shape(v) for v in fed.values()))
     n0 = np.stack(
-        [np.broadcast_to(np.asarray(fed.get(s.key, 0.0), dtype=float), shape) for s in sps], axis=-1
+        [np.broadcast_to(np.asarray(fed.get(s.key, 0.0), dtype=float), fshape) for s in sps],
+        axis=-1,
     )
     lnP = np.log(Parr / P_BAR)
     sol = minimize_gibbs(A, mu0, n0, lnP, tol=tol)
