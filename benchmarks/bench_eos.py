@@ -21,6 +21,7 @@ from pathlib import Path
 
 import numpy as np
 import thermo
+from _common import cpu_model as _cpu_model  # benchmarks/_common.py
 from thermo.eos_mix import PRMIX
 
 from eqconv.eos import ln_phi_mixture
@@ -38,15 +39,6 @@ def _states(n: int, seed: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     return T, P, y
 
 
-def _cpu_model() -> str:
-    try:
-        with open("/proc/cpuinfo", encoding="utf-8") as fh:
-            for line in fh:
-                if line.lower().startswith("model name"):
-                    return line.split(":", 1)[1].strip()
-    except OSError:
-        pass
-    return platform.processor() or "unknown"
 
 
 def _timings(fn, repeats: int) -> tuple[float, float]:

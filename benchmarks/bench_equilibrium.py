@@ -34,6 +34,8 @@ from pathlib import Path
 
 import numpy as np
 import scipy
+from _common import cpu_model as _cpu_model  # benchmarks/_common.py
+from _common import timed as _timed
 from scipy.optimize import brentq, fsolve, minimize
 
 from eqconv import Reaction
@@ -47,25 +49,8 @@ NH3_FEED = {"N2": 0.95 * 0.25, "H2": 0.95 * 0.75, "Ar": 0.05}
 REF_FEED = {"CH4": 1.0, "H2O": 3.0}
 
 
-def _cpu_model() -> str:
-    try:
-        with open("/proc/cpuinfo", encoding="utf-8") as fh:
-            for line in fh:
-                if line.lower().startswith("model name"):
-                    return line.split(":", 1)[1].strip()
-    except OSError:
-        pass
-    return platform.processor() or "unknown"
 
 
-def _timed(fn, repeats: int) -> tuple[float, float, object]:
-    """Best and median wall time [s] of `fn` over `repeats` calls, and its last result."""
-    times, out = [], None
-    for _ in range(repeats):
-        t0 = time.perf_counter()
-        out = fn()
-        times.append(time.perf_counter() - t0)
-    return min(times), float(np.median(times)), out
 
 
 def _with_y(res: EquilibriumResult) -> EquilibriumResult:

@@ -35,6 +35,8 @@ from pathlib import Path
 import numpy as np
 import scipy
 import thermo
+from _common import cpu_model as _cpu_model  # benchmarks/_common.py
+from _common import timed as _timed
 from scipy.optimize import brentq
 from thermo.eos_mix import PRMIX
 
@@ -49,24 +51,8 @@ NU = np.array([-0.5, -1.5, 1.0, 0.0])
 TOL = 1e-10
 
 
-def _cpu_model() -> str:
-    try:
-        with open("/proc/cpuinfo", encoding="utf-8") as fh:
-            for line in fh:
-                if line.lower().startswith("model name"):
-                    return line.split(":", 1)[1].strip()
-    except OSError:
-        pass
-    return platform.processor() or "unknown"
 
 
-def _timed(fn, repeats: int) -> tuple[float, float, object]:
-    times, out = [], None
-    for _ in range(repeats):
-        t0 = time.perf_counter()
-        out = fn()
-        times.append(time.perf_counter() - t0)
-    return min(times), float(np.median(times)), out
 
 
 # ---------------------------------------------------------------------------- baseline

@@ -46,6 +46,7 @@ from pathlib import Path  # noqa: E402
 from typing import Any  # noqa: E402
 
 import numpy as np  # noqa: E402
+from _common import cpu_model as _cpu_model  # noqa: E402  (benchmarks/_common.py)
 
 HERE = Path(__file__).resolve().parent
 RESULTS = HERE / "RESULTS_uncertainty.md"
@@ -254,14 +255,6 @@ def child(n_samples: int, n_grid: int, repeats: int, n_baseline: int) -> dict[st
     return result
 
 
-def _cpu_model() -> str:
-    try:
-        for line in Path("/proc/cpuinfo").read_text().splitlines():
-            if line.startswith("model name"):
-                return line.split(":", 1)[1].strip()
-    except OSError:
-        pass
-    return platform.processor() or "unknown"
 
 
 def _report(r: dict[str, Any], quick: bool) -> str:
