@@ -124,8 +124,12 @@ def _step_to_cap(lnn: FloatArray, dln: FloatArray, cap: FloatArray, axis: int) -
     """
     capx = np.expand_dims(cap, axis)
     new = lnn + dln
-    size = np.where(np.maximum(lnn, new) > capx - 700.0, np.abs(dln), 0.0)
-    t = np.minimum(1.0, _MAX_DLN / np.maximum(size.max(axis=axis), 1e-300))
+    adl = np.abs(dln)
+    if adl.max(initial=0.0) <= _MAX_DLN:  # the usual case: no step is limited by its size
+        t = np.ones(cap.shape)
+    else:
+        size = np.where(np.maximum(lnn, new) > capx - 700.0, adl, 0.0)
+        t = np.minimum(1.0, _MAX_DLN / np.maximum(size.max(axis=axis), 1e-300))
     over = new > capx
     if not np.any(over):
         return t
@@ -140,47 +144,52 @@ def _solve_bordered(
     """Solve [[M, v], [vᵀ, 0]] [x; y] = −[R; R0] per point; M (r, r, m) SPD, v, R (r, m).
 
     Cholesky factorisation of M, unrolled over the small dimension and vectorized over the
-    points (insensitive to the scaling of M), then the Schur complement −vᵀM⁻¹v.
+    points (insensitive to the scaling of M), then the Schur complement −vᵀM⁻¹v. Only the
+    lower triangle of M is read; M is overwritten with the factor.
     """
     r = v.shape[0]
-    L: list[list[FloatArray]] = [[np.empty(0)] * r for _ in range(r)]
-    inv: list[FloatArray] = []  # 1 / L_jj
+    inv = np.empty((r, len(R0)))  # 1 / L_jj
+    tmp = np.empty(len(R0))
     for j in range(r):
-        acc = M[j, j].copy()
+        acc = M[j, j]
+        floor = 1e-14 * acc
         for k in range(j):
-            acc -= L[j][k] * L[j][k]
-        np.maximum(acc, 1e-14 * M[j, j], out=acc)
+            np.multiply(M[j, k], M[j, k], out=tmp)
+            acc -= tmp
+        np.maximum(acc, floor, out=acc)
         acc += 1e-300
-        L[j][j] = np.sqrt(acc, out=acc)
-        inv.append(1.0 / L[j][j])
+        np.sqrt(acc, out=acc)
+        np.divide(1.0, acc, out=inv[j])
         for i in range(j + 1, r):
-            acc = M[i, j] * inv[j]
+            acc = M[i, j]
             for k in range(j):
-                acc -= (L[i][k] * L[j][k]) * inv[j]
-            L[i][j] = acc
-    ya: list[FloatArray] = []  # L⁻¹R and L⁻¹v
-    yw: list[FloatArray] = []
+                np.multiply(M[i, k], M[j, k], out=tmp)
+                acc -= tmp
+            acc *= inv[j]
+    ya = R.copy()  # L⁻¹R and L⁻¹v, in place
+    yw = v.copy()
     for j in range(r):
-        aa, ww = R[j].copy(), v[j].copy()
         for k in range(j):
-            aa -= L[j][k] * ya[k]
-            ww -= L[j][k] * yw[k]
-        aa *= inv[j]
-        ww *= inv[j]
-        ya.append(aa)
-        yw.append(ww)
-    vw = yw[0] * yw[0]
-    va = ya[0] * yw[0]
-    for j in range(1, r):
-        vw += yw[j] * yw[j]
-        va += ya[j] * yw[j]
-    dnu = (R0 - va) / np.maximum(vw, 1e-300)
-    x = np.empty((r, len(R0)))
-    for j in reversed(range(r)):  # Lᵀ x = −(L⁻¹R + L⁻¹v dν)
-        acc = -ya[j] - yw[j] * dnu
+            np.multiply(M[j, k], ya[k], out=tmp)
+            ya[j] -= tmp
+            np.multiply(M[j, k], yw[k], out=tmp)
+            yw[j] -= tmp
+        ya[j] *= inv[j]
+        yw[j] *= inv[j]
+    vw = np.einsum("jm,jm->m", yw, yw)
+    va = np.einsum("jm,jm->m", ya, yw)
+    dnu = R0 - va
+    dnu /= np.maximum(vw, 1e-300)
+    x = ya  # Lᵀ x = −(L⁻¹R + L⁻¹v dν), overwriting L⁻¹R from the last row up
+    for j in reversed(range(r)):
+        acc = x[j]
+        np.multiply(yw[j], dnu, out=tmp)
+        acc += tmp
+        np.negative(acc, out=acc)
         for k in range(j + 1, r):
-            acc -= L[k][j] * x[k]
-        x[j] = acc * inv[j]
+            np.multiply(M[k, j], x[k], out=tmp)
+            acc -= tmp
+        acc *= inv[j]
     return x, dnu
 
 

@@ -70,7 +70,7 @@ IntArray = NDArray[np.intp]
 Warm = tuple[FloatArray, FloatArray, NDArray[np.bool_]]
 
 _PHASE1_ITER = 15  # the fast path hands a point over after this many iterations
-_LEVELS = (16,)  # every 16th point of a group is solved first, then all (coarse to fine)
+_LEVELS = (16,)  # every 16th point of each grid row is solved first, then all points
 _WARM_MERIT = 10.0  # a start from those is taken where its squared log residuals are below
 
 
@@ -211,9 +211,13 @@ def _solve_chunk(
                 use = wok & (state0[6] < _WARM_MERIT)
                 lam, nu = wl.copy(), wn.copy()
             if not np.all(use):
-                state0 = None
-                start_lp(rows[~use])
+                cold = rows[~use]
+                start_lp(cold)
                 lam, nu = np.where(use, lam, lam0), np.where(use, nu, nu0)
+                if state0 is not None:  # the state at the other start, where it is taken
+                    fresh = phase1_state(prob, gT[:, cold], lnb[:, cold], lam[:, cold], nu[cold])
+                    for arr, val in zip(state0, fresh, strict=True):
+                        arr[..., cold] = val
             conv, iters = phase1(
                 prob, gT, bT, lam, nu, min(max_iter, _PHASE1_ITER), tol, balance_tol, state0
             )
@@ -378,6 +382,7 @@ def minimize_gibbs(
             elements,
             out,
             chunk_size,
+            row=batch[-1] if batch else 1,
             max_iter=max_iter,
             tol=tol,
             balance_tol=balance_tol,
@@ -546,6 +551,54 @@ def _groups(
             yield prob, np.flatnonzero(point_group == s_)
 
 
+def _coarse_plan(npts: int, row: int, stride: int) -> tuple[IntArray, IntArray, FloatArray]:
+    """Coarse positions and, for every position, three coarse neighbours and their weights.
+
+    The positions 0 … npts−1 are read as rows of length `row` (the last grid axis) when
+    they divide into such rows, else as one row. Coarse points: every `stride`-th point of
+    each row and its last point, so that no start is interpolated across two rows. Returns
+    the coarse positions (nc,), the indices into them of the neighbours (3, npts) and the
+    quadratic (Lagrange) weights (3, npts) of each position in its row.
+    """
+    R = row if (row >= 4 * stride and npts % row == 0) else npts
+    cc = np.unique(np.r_[np.arange(0, R, stride), R - 1])  # coarse columns of a row
+    nc = len(cc)
+    rows, col = np.divmod(np.arange(npts), R)
+    coarse = (np.arange(npts // R)[:, None] * R + cc).reshape(-1)
+    k = np.minimum(np.searchsorted(cc, col, side="right") - 1, nc - 2)  # left neighbour
+    first = np.where(k >= 1, k - 1, 0) if nc >= 3 else k  # three nodes around each point
+    nodes = np.stack([first, first + 1, first + 2]) if nc >= 3 else np.stack([k, k + 1, k + 1])
+    nodes = np.minimum(nodes, nc - 1)
+    t = cc[nodes].astype(float)
+    x = col.astype(float)
+    w = np.empty_like(t)
+    for a in range(3):
+        b_, c_ = (a + 1) % 3, (a + 2) % 3
+        with np.errstate(divide="ignore", invalid="ignore"):
+            w[a] = (x - t[b_]) * (x - t[c_]) / ((t[a] - t[b_]) * (t[a] - t[c_]))
+    if nc < 3:  # two coarse points per row: linear
+        w = np.stack([(t[1] - x) / (t[1] - t[0]), (x - t[0]) / (t[1] - t[0]), np.zeros_like(x)])
+    return coarse, nodes + (rows * nc)[None, :], w
+
+
+def _interpolate(coarse: list[FloatArray], nodes: IntArray, w: FloatArray) -> Warm:
+    """Start (λ, ln N, usable) from coarse solutions (λ, ln N, ok) at three neighbours.
+
+    Quadratic where all three neighbours converged; otherwise the nearest one that did
+    (marked unusable if none did).
+    """
+    ls, vs, oks = coarse
+    good = oks[nodes] > 0  # (3, m)
+    quad = np.all(good, axis=0)
+    near = np.argmax(np.abs(w), axis=0)  # the neighbour the point is closest to
+    ww = np.where(quad, w, 0.0)
+    cols = np.arange(nodes.shape[1])
+    ww[near[~quad], cols[~quad]] = 1.0
+    lam = sum(ww[a] * ls[:, nodes[a]] for a in range(3))
+    nu = sum(ww[a] * vs[nodes[a]] for a in range(3))
+    return np.asarray(lam), np.asarray(nu), quad | good[near, cols]
+
+
 def _solve_points(
     prob: Problem,
     pts: IntArray,
@@ -556,12 +609,14 @@ def _solve_points(
     elements: bool,
     out: dict[str, FloatArray],
     chunk: int,
+    row: int = 1,
     **kw: Any,
 ) -> None:
     """Solve the points `pts` of one group in chunks and fill `out`.
 
-    Coarse to fine (strides _LEVELS, then 1): each point is offered the solution
-    interpolated between the points of the coarser level around it as a start.
+    Coarse to fine (:func:`_coarse_plan` with stride _LEVELS[0], then every point): each
+    point is offered the solution interpolated between the coarse points around it in its
+    row (`row`: the length of the last grid axis) as a start.
     """
     S, ns = prob.species, out["lnn"].shape[1]
     fcols = prob.cb.cols if elements else S
@@ -586,37 +641,31 @@ def _solve_points(
             **kw,
         )
 
-    strides = [s_ for s_ in _LEVELS if len(pts) >= 4 * s_ and len(S) > prob.r] + [1]
-    coarse: list[FloatArray] = []  # λ, ln N, usable at the previous level
-    prev, iters = 0, np.zeros(len(pts))
-    for stride in strides:
+    iters = np.zeros(len(pts))
+    coarse: list[FloatArray] = []  # λ, ln N, usable at the coarse points
+    stride = _LEVELS[0]
+    if len(pts) >= 4 * stride and len(S) > prob.r:
+        cpos, nodes, wts = _coarse_plan(len(pts), row if len(pts) == len(g) else 1, stride)
         parts = []
-        for lo in range(0, len(pts), chunk * stride):
-            pos = np.arange(lo, min(lo + chunk * stride, len(pts)), stride)
-            idx = pts[pos]
-            warm: Warm | None = None
-            if coarse:  # between the coarser points around (a coarser point: itself)
-                ls, vs, oks = coarse
-                s0 = pos // prev
-                s1 = np.minimum(s0 + 1, len(vs) - 1)
-                w = np.where(oks[s1] > 0, (pos % prev) / prev, 0.0)
-                l0, v0 = ls[:, s0], vs[s0]
-                warm = (l0 + w * (ls[:, s1] - l0), v0 + w * (vs[s1] - v0), oks[s0] > 0)
-            res = run(idx, warm)
+        for lo in range(0, len(cpos), chunk):
+            pos = cpos[lo : lo + chunk]
+            res = run(pts[pos], None)
             iters[pos] += res["iters"]
-            if stride > 1:
-                parts.append(res)
-                continue
-            cols: tuple[IntArray, ...] | slice = (
-                (idx,) if idx[-1] - idx[0] != len(idx) - 1 else slice(int(idx[0]), int(idx[-1]) + 1)
-            )
-            if len(S) < ns:
-                cols = (idx[:, None], S[None, :])
-            out["lnn"][cols], out["x"][cols], out["present"][cols] = res["lnn"].T, res["x"].T, 1
-            rows = cols if isinstance(cols, slice) else idx
-            for key in ("bal", "total", "comp", "stat"):
-                out[key][rows] = res[key]
-            out["iters"][rows] = iters[pos]
-        if stride > 1:
-            coarse = [np.concatenate([q[k] for q in parts], axis=-1) for k in ("lam", "nu", "ok")]
-            prev = stride
+            parts.append(res)
+        coarse = [np.concatenate([q[k] for q in parts], axis=-1) for k in ("lam", "nu", "ok")]
+    for lo in range(0, len(pts), chunk):
+        pos = np.arange(lo, min(lo + chunk, len(pts)))
+        idx = pts[pos]
+        warm = _interpolate(coarse, nodes[:, pos], wts[:, pos]) if coarse else None
+        res = run(idx, warm)
+        iters[pos] += res["iters"]
+        cols: tuple[IntArray, ...] | slice = (
+            (idx,) if idx[-1] - idx[0] != len(idx) - 1 else slice(int(idx[0]), int(idx[-1]) + 1)
+        )
+        if len(S) < ns:
+            cols = (idx[:, None], S[None, :])
+        out["lnn"][cols], out["x"][cols], out["present"][cols] = res["lnn"].T, res["x"].T, 1
+        rows = cols if isinstance(cols, slice) else idx
+        for key in ("bal", "total", "comp", "stat"):
+            out[key][rows] = res[key]
+        out["iters"][rows] = iters[pos]
