@@ -152,6 +152,24 @@ class GibbsSolution:
 
 
 # ---------------------------------------------------------------------- one chunk of points
+_VERT: list[tuple[Problem, bytes, bool, FloatArray, NDArray[np.bool_]]] = []
+
+
+def _vertices(
+    prob: Problem, frows: FloatArray, elements: bool
+) -> tuple[FloatArray, NDArray[np.bool_]]:
+    """Vertex amounts and feasible bases of `prob` for the feed rows (read-only).
+
+    The last result is kept: consecutive chunks of one grid share their feed rows.
+    """
+    key = frows.tobytes() + str(frows.shape).encode()
+    if not (_VERT and _VERT[0][0] is prob and _VERT[0][1] == key and _VERT[0][2] == elements):
+        V, feas, _ = prob.vertices(frows, elements)
+        V.flags.writeable = feas.flags.writeable = False
+        _VERT[:] = [(prob, key, elements, V, feas)]
+    return _VERT[0][3], _VERT[0][4]
+
+
 def _solve_chunk(
     prob: Problem,
     g: FloatArray,
@@ -176,7 +194,7 @@ def _solve_chunk(
     rows = np.arange(m)
     gT = np.ascontiguousarray((g if nS == g.shape[1] else g[:, prob.species]).T)
     bT = np.ascontiguousarray(b[:, prob.cb.cols].T)
-    V, feas, _ = prob.vertices(frows, elements)
+    V, feas = _vertices(prob, frows, elements)
     if not np.all(np.any(feas, axis=1)):
         bad = int(np.flatnonzero(~np.any(feas[finv], axis=1))[0])
         raise InputError(
@@ -229,7 +247,12 @@ def _solve_chunk(
             np.minimum(lnT[basis[0]], lnT[basis[-1]], out=score[k_])
             for i_ in basis[1:-1]:
                 np.minimum(score[k_], lnT[i_], out=score[k_])
-        bid = np.argmax(score, axis=0).astype(np.intp)
+        bid = np.zeros(m, dtype=np.intp)  # argmax over the bases (axis 0), row by row
+        top = score[0].copy()
+        for k_ in range(1, len(score)):
+            better = score[k_] > top
+            bid[better] = k_
+            np.maximum(top, score[k_], out=top)
         with np.errstate(over="ignore", invalid="ignore"):
             n = np.exp(lnT)
             Rsum = np.abs(prob.AredT @ n - bT).sum(axis=0)
