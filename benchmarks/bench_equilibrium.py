@@ -52,10 +52,6 @@ NH3_FEED = {"N2": 0.95 * 0.25, "H2": 0.95 * 0.75, "Ar": 0.05}
 REF_FEED = {"CH4": 1.0, "H2O": 3.0}
 
 
-
-
-
-
 def _with_y(res: EquilibriumResult) -> EquilibriumResult:
     """The result, with its mole fractions computed (part of the timed work)."""
     _ = res.mole_fractions

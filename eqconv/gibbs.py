@@ -574,52 +574,63 @@ def _groups(
             yield prob, np.flatnonzero(point_group == s_)
 
 
-def _coarse_plan(npts: int, row: int, stride: int) -> tuple[IntArray, IntArray, FloatArray]:
+def _coarse_plan(
+    npts: int, row: int, stride: int
+) -> tuple[IntArray, IntArray, FloatArray, IntArray]:
     """Coarse positions and, for every position, three coarse neighbours and their weights.
 
     The positions 0 … npts−1 are read as rows of length `row` (the last grid axis) when
     they divide into such rows, else as one row. Coarse points: every `stride`-th point of
     each row and its last point, so that no start is interpolated across two rows. Returns
-    the coarse positions (nc,), the indices into them of the neighbours (3, npts) and the
-    quadratic (Lagrange) weights (3, npts) of each position in its row.
+    the coarse positions (nc,), the indices into them of the neighbours (3, npts), the
+    quadratic (Lagrange) weights (3, npts) of each position in its row, and which of the
+    three neighbours is the nearest (npts,).
     """
     R = row if (row >= 4 * stride and npts % row == 0) else npts
     cc = np.unique(np.r_[np.arange(0, R, stride), R - 1])  # coarse columns of a row
-    nc = len(cc)
-    rows, col = np.divmod(np.arange(npts), R)
-    coarse = (np.arange(npts // R)[:, None] * R + cc).reshape(-1)
+    nc, nrow = len(cc), npts // R
+    col = np.arange(R)
     k = np.minimum(np.searchsorted(cc, col, side="right") - 1, nc - 2)  # left neighbour
-    first = np.where(k >= 1, k - 1, 0) if nc >= 3 else k  # three nodes around each point
-    nodes = np.stack([first, first + 1, first + 2]) if nc >= 3 else np.stack([k, k + 1, k + 1])
-    nodes = np.minimum(nodes, nc - 1)
-    t = cc[nodes].astype(float)
-    x = col.astype(float)
-    w = np.empty_like(t)
-    for a in range(3):
-        b_, c_ = (a + 1) % 3, (a + 2) % 3
-        with np.errstate(divide="ignore", invalid="ignore"):
+    if nc >= 3:  # three nodes around each point (the first interval: the next three)
+        first = np.minimum(np.maximum(k - 1, 0), nc - 3)
+        nodes = np.stack([first, first + 1, first + 2])
+        t, x = cc[nodes].astype(float), col.astype(float)
+        w = np.empty_like(t)
+        for a in range(3):
+            b_, c_ = (a + 1) % 3, (a + 2) % 3
             w[a] = (x - t[b_]) * (x - t[c_]) / ((t[a] - t[b_]) * (t[a] - t[c_]))
-    if nc < 3:  # two coarse points per row: linear
-        w = np.stack([(t[1] - x) / (t[1] - t[0]), (x - t[0]) / (t[1] - t[0]), np.zeros_like(x)])
-    return coarse, nodes + (rows * nc)[None, :], w
+    else:  # two coarse points per row: linear
+        nodes = np.stack([k, k + 1, k + 1])
+        t, x = cc[nodes].astype(float), col.astype(float)
+        w = np.stack([(t[1] - x) / (t[1] - t[0]), (x - t[0]) / (t[1] - t[0]), np.zeros(R)])
+    near = np.argmin(np.abs(t - x), axis=0)
+    coarse = (np.arange(nrow)[:, None] * R + cc).reshape(-1)
+    offset = np.arange(nrow)[:, None] * nc
+    nodes_all = (nodes[:, None, :] + offset[None]).reshape(3, -1)
+    return coarse, nodes_all, np.tile(w, nrow), np.tile(near, nrow)
 
 
-def _interpolate(coarse: list[FloatArray], nodes: IntArray, w: FloatArray) -> Warm:
+def _interpolate(coarse: list[FloatArray], nodes: IntArray, w: FloatArray, near: IntArray) -> Warm:
     """Start (λ, ln N, usable) from coarse solutions (λ, ln N, ok) at three neighbours.
 
-    Quadratic where all three neighbours converged; otherwise the nearest one that did
-    (marked unusable if none did).
+    Quadratic where all three neighbours converged; otherwise the nearest one, usable if it
+    converged.
     """
     ls, vs, oks = coarse
     good = oks[nodes] > 0  # (3, m)
-    quad = np.all(good, axis=0)
-    near = np.argmax(np.abs(w), axis=0)  # the neighbour the point is closest to
-    ww = np.where(quad, w, 0.0)
+    quad = good[0] & good[1] & good[2]
+    lam = np.empty((ls.shape[0], nodes.shape[1]))
+    nu = np.empty(nodes.shape[1])
+    if np.all(quad):
+        lam[:] = w[0] * ls[:, nodes[0]] + w[1] * ls[:, nodes[1]] + w[2] * ls[:, nodes[2]]
+        nu[:] = w[0] * vs[nodes[0]] + w[1] * vs[nodes[1]] + w[2] * vs[nodes[2]]
+        return lam, nu, quad
     cols = np.arange(nodes.shape[1])
+    ww = np.where(quad, w, 0.0)
     ww[near[~quad], cols[~quad]] = 1.0
-    lam = sum(ww[a] * ls[:, nodes[a]] for a in range(3))
-    nu = sum(ww[a] * vs[nodes[a]] for a in range(3))
-    return np.asarray(lam), np.asarray(nu), quad | good[near, cols]
+    lam[:] = ww[0] * ls[:, nodes[0]] + ww[1] * ls[:, nodes[1]] + ww[2] * ls[:, nodes[2]]
+    nu[:] = ww[0] * vs[nodes[0]] + ww[1] * vs[nodes[1]] + ww[2] * vs[nodes[2]]
+    return lam, nu, quad | good[near, cols]
 
 
 def _solve_points(
@@ -668,7 +679,7 @@ def _solve_points(
     coarse: list[FloatArray] = []  # λ, ln N, usable at the coarse points
     stride = _LEVELS[0]
     if len(pts) >= 4 * stride and len(S) > prob.r:
-        cpos, nodes, wts = _coarse_plan(len(pts), row if len(pts) == len(g) else 1, stride)
+        cpos, nodes, wts, near = _coarse_plan(len(pts), row if len(pts) == len(g) else 1, stride)
         parts = []
         for lo in range(0, len(cpos), chunk):
             pos = cpos[lo : lo + chunk]
@@ -679,7 +690,8 @@ def _solve_points(
     for lo in range(0, len(pts), chunk):
         pos = np.arange(lo, min(lo + chunk, len(pts)))
         idx = pts[pos]
-        warm = _interpolate(coarse, nodes[:, pos], wts[:, pos]) if coarse else None
+        sl = slice(lo, lo + len(pos))
+        warm = _interpolate(coarse, nodes[:, sl], wts[:, sl], near[sl]) if coarse else None
         res = run(idx, warm)
         iters[pos] += res["iters"]
         cols: tuple[IntArray, ...] | slice = (

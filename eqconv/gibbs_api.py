@@ -104,18 +104,17 @@ def _as_result(
     n = np.broadcast_to(sol.amounts, (*shape, len(keys)))
     extents = (n - n0) @ np.linalg.pinv(nu) if nr else np.zeros((*shape, 0))
     present = np.broadcast_to(sol.present, n.shape)
-    # residual of reaction j: Σ_i ν_ji μ_i/(R T) over its species, summed in species order;
-    # zero where it needs a species that cannot be present (blocked)
+    # residual of reaction j: Σ_i ν_ji μ_i/(R T) over its species; zero where it needs a
+    # species that cannot be present (blocked)
     blocked = np.zeros((*shape, nr), dtype=bool)
-    residual = np.zeros((*shape, nr))
     with np.errstate(invalid="ignore"):
         mu = mu0 + lnP[..., None]
-        mu += sol.ln_amounts - np.log(sol.total)[..., None]
-        for j in range(nr):
-            acc = residual[..., j]
-            for i in np.flatnonzero(nu[j]):
-                acc += mu[..., i] * nu[j, i]
-                blocked[..., j] |= ~present[..., i]
+        mu += sol.ln_amounts
+        mu -= np.log(sol.total)[..., None]
+        if not np.all(present):  # (−inf − −inf = NaN there: only the other terms are summed)
+            blocked = (~present).astype(float) @ (nu != 0).T.astype(float) > 0
+            mu = np.where(present, mu, 0.0)
+        residual = mu @ nu.T
         residual[blocked] = 0.0
     ext = ExtentSolution(
         extents=np.where(sol.converged[..., None], extents, np.nan),

@@ -411,3 +411,46 @@ def test_docstring_examples_run():
     for mod in (eqconv.gibbs, eqconv.gibbs_api):
         result = doctest.testmod(mod)
         assert result.attempted >= 1 and result.failed == 0
+
+
+# ---------------------------------------------------------------------- coarse-to-fine starts
+@pytest.mark.parametrize(("npts", "row"), [(7 * 200, 200), (5 * 37, 37), (301, 200), (100, 1)])
+def test_coarse_plan_stays_in_rows_and_is_exact_for_quadratics(npts: int, row: int) -> None:
+    """Starts are interpolated from coarse points of the same grid row only, and the weights
+    are Lagrange weights: exact for any quadratic in the position (a fact of numerical
+    analysis, common practice)."""
+    from eqconv.gibbs import _coarse_plan
+
+    stride = 16
+    coarse, nodes, w, near = _coarse_plan(npts, row, stride)
+    R = row if (row >= 4 * stride and npts % row == 0) else npts
+    pos = np.arange(npts)
+    assert np.all(np.diff(coarse) > 0)
+    assert set((np.arange(npts // R) * R + R - 1).tolist()) <= set(coarse.tolist())
+    assert np.all(coarse[nodes] // R == pos // R)  # same row
+    col = (pos % R).astype(float)
+    for f in (lambda c: np.ones_like(c), lambda c: 3.0 * c - 2.0, lambda c: 0.01 * c**2 - c):
+        approx = np.sum(w * f((coarse[nodes] % R).astype(float)), axis=0)
+        np.testing.assert_allclose(approx, f(col), rtol=1e-12, atol=1e-9)
+    # the nearest neighbour is the one with the smallest distance
+    dist = np.abs(coarse[nodes] % R - col)
+    assert np.all(dist[near, pos] == dist.min(axis=0))
+
+
+def test_grid_rows_do_not_change_the_answer() -> None:
+    """The same points solved as one row or as rows of a grid agree (start independence)."""
+    T = np.linspace(700.0, 1300.0, 30)[:, None]
+    P = np.linspace(1e5, 50e5, 80)[None, :]
+    keys = ["CH4", "H2O", "CO", "CO2", "H2"]
+    feed = {"CH4": 1.0, "H2O": 3.0}
+    grid = gibbs_equilibrium(keys, feed, T, P, data="janaf")
+    flat = gibbs_equilibrium(
+        keys,
+        feed,
+        np.broadcast_to(T, (30, 80)).ravel(),
+        np.broadcast_to(P, (30, 80)).ravel(),
+        data="janaf",
+    )
+    assert grid.solution.converged.all() and flat.solution.converged.all()
+    for k in keys:
+        np.testing.assert_allclose(grid.amounts[k].ravel(), flat.amounts[k], rtol=1e-10, atol=1e-14)
