@@ -39,8 +39,6 @@ def _states(n: int, seed: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     return T, P, y
 
 
-
-
 def _timings(fn, repeats: int) -> tuple[float, float]:
     """Best and median wall time of `repeats` calls [s]."""
     times = []

@@ -51,10 +51,6 @@ NU = np.array([-0.5, -1.5, 1.0, 0.0])
 TOL = 1e-10
 
 
-
-
-
-
 # ---------------------------------------------------------------------------- baseline
 def _inner_brentq(n0: np.ndarray, c: float, ln_k: float, ln_p: float) -> float:
     """Extent of 1/2 N2 + 3/2 H2 = NH3 at fixed c = Σ ν ln φ (per point, brentq)."""

@@ -255,8 +255,6 @@ def child(n_samples: int, n_grid: int, repeats: int, n_baseline: int) -> dict[st
     return result
 
 
-
-
 def _report(r: dict[str, Any], quick: bool) -> str:
     mib = 2**20
     now = datetime.datetime.now().astimezone().strftime("%Y-%m-%d %H:%M %Z")

@@ -183,39 +183,53 @@ class PowerSeriesCp:
         return self._s_anti(T) - self._s_anti(np.asarray(T_REF))
 
 
-def constant_cp(value: float, T_min: float = 100.0, T_max: float = 6000.0,
-                method: str = "constant (user)") -> PowerSeriesCp:
+def constant_cp(
+    value: float, T_min: float = 100.0, T_max: float = 6000.0, method: str = "constant (user)"
+) -> PowerSeriesCp:
     """Constant heat capacity `value` [J/(mol K)]."""
     return PowerSeriesCp((value,), (0.0,), T_min, T_max, method)
 
 
-def polynomial_cp(coeffs: Sequence[float], T_min: float, T_max: float,
-                  method: str = "polynomial (user)") -> PowerSeriesCp:
+def polynomial_cp(
+    coeffs: Sequence[float], T_min: float, T_max: float, method: str = "polynomial (user)"
+) -> PowerSeriesCp:
     """Cp° = a0 + a1 T + a2 T² + … [J/(mol K)], coefficients in ascending powers of T [K]."""
-    return PowerSeriesCp(tuple(coeffs), tuple(float(k) for k in range(len(coeffs))),
-                         T_min, T_max, method)
+    return PowerSeriesCp(
+        tuple(coeffs), tuple(float(k) for k in range(len(coeffs))), T_min, T_max, method
+    )
 
 
-def maier_kelley_cp(a: float, b: float, c: float, T_min: float, T_max: float,
-                    method: str = "Maier-Kelley (user)") -> PowerSeriesCp:
+def maier_kelley_cp(
+    a: float, b: float, c: float, T_min: float, T_max: float, method: str = "Maier-Kelley (user)"
+) -> PowerSeriesCp:
     """Cp° = a + b T + c / T² [J/(mol K)], the textbook form for solids and gases."""
     return PowerSeriesCp((a, b, c), (0.0, 1.0, -2.0), T_min, T_max, method)
 
 
-def shomate_cp(A: float, B: float, C: float, D: float, E: float, T_min: float,
-               T_max: float, method: str = "Shomate (user)") -> PowerSeriesCp:
+def shomate_cp(
+    A: float,
+    B: float,
+    C: float,
+    D: float,
+    E: float,
+    T_min: float,
+    T_max: float,
+    method: str = "Shomate (user)",
+) -> PowerSeriesCp:
     """Shomate equation Cp° = A + B t + C t² + D t³ + E/t², t = T/1000 K [J/(mol K)].
 
     References
     ----------
     .. [1] NIST Chemistry WebBook, SRD 69: Shomate equation and parameter convention.
     """
-    return PowerSeriesCp((A, B * 1e-3, C * 1e-6, D * 1e-9, E * 1e6),
-                         (0.0, 1.0, 2.0, 3.0, -2.0), T_min, T_max, method)
+    return PowerSeriesCp(
+        (A, B * 1e-3, C * 1e-6, D * 1e-9, E * 1e6), (0.0, 1.0, 2.0, 3.0, -2.0), T_min, T_max, method
+    )
 
 
-def nasa7_cp(a: Sequence[float], T_min: float, T_max: float,
-             method: str = "NASA 7-term (user)") -> PowerSeriesCp:
+def nasa7_cp(
+    a: Sequence[float], T_min: float, T_max: float, method: str = "NASA 7-term (user)"
+) -> PowerSeriesCp:
     """NASA 7-term polynomial: Cp°/R = a1 + a2 T + a3 T² + a4 T³ + a5 T⁴.
 
     Only a1…a5 set Cp; a6 and a7 (enthalpy and entropy constants) may be passed and are
@@ -223,17 +237,24 @@ def nasa7_cp(a: Sequence[float], T_min: float, T_max: float,
     """
     if len(a) not in (5, 7):
         raise InputError(f"NASA 7-term polynomials take 5 or 7 coefficients; got {len(a)}")
-    return PowerSeriesCp(tuple(R * float(x) for x in a[:5]), (0.0, 1.0, 2.0, 3.0, 4.0),
-                         T_min, T_max, method)
+    return PowerSeriesCp(
+        tuple(R * float(x) for x in a[:5]), (0.0, 1.0, 2.0, 3.0, 4.0), T_min, T_max, method
+    )
 
 
-def nasa9_cp(a: Sequence[float], T_min: float, T_max: float,
-             method: str = "NASA 9-term (user)") -> PowerSeriesCp:
+def nasa9_cp(
+    a: Sequence[float], T_min: float, T_max: float, method: str = "NASA 9-term (user)"
+) -> PowerSeriesCp:
     """NASA 9-term polynomial: Cp°/R = a1/T² + a2/T + a3 + a4 T + … + a7 T⁴ (a8, a9 ignored)."""
     if len(a) not in (7, 9):
         raise InputError(f"NASA 9-term polynomials take 7 or 9 coefficients; got {len(a)}")
-    return PowerSeriesCp(tuple(R * float(x) for x in a[:7]),
-                         (-2.0, -1.0, 0.0, 1.0, 2.0, 3.0, 4.0), T_min, T_max, method)
+    return PowerSeriesCp(
+        tuple(R * float(x) for x in a[:7]),
+        (-2.0, -1.0, 0.0, 1.0, 2.0, 3.0, 4.0),
+        T_min,
+        T_max,
+        method,
+    )
 
 
 _GL_X, _GL_W = np.polynomial.legendre.leggauss(24)
@@ -342,8 +363,12 @@ class TabulatedCp:
         s = np.asarray(self.s_nodes, dtype=float)
         if not (T.ndim == 1 and T.size >= 2 and cp.shape == h.shape == s.shape == T.shape):
             raise InputError("a heat-capacity table needs >= 2 rows of equal-length T, Cp, H, S")
-        if not (np.all(np.isfinite(T)) and np.all(np.isfinite(cp)) and np.all(np.isfinite(h))
-                and np.all(np.isfinite(s))):
+        if not (
+            np.all(np.isfinite(T))
+            and np.all(np.isfinite(cp))
+            and np.all(np.isfinite(h))
+            and np.all(np.isfinite(s))
+        ):
             raise InputError(f"a heat-capacity table must hold finite numbers ({self.method})")
         if np.any(T <= 0) or np.any(np.diff(T) <= 0):
             raise InputError("table temperatures must be > 0 K and strictly increasing")
@@ -371,9 +396,7 @@ class TabulatedCp:
 
     def h_int(self, T: ArrayLike) -> FloatArray:
         """Enthalpy increment H°(T) − H°(298.15 K) [J/mol]."""
-        return np.asarray(self._h(np.asarray(T, dtype=float)), dtype=float) - float(
-            self._h(T_REF)
-        )
+        return np.asarray(self._h(np.asarray(T, dtype=float)), dtype=float) - float(self._h(T_REF))
 
     def s_int(self, T: ArrayLike) -> FloatArray:
         """Entropy increment S°(T) − S°(298.15 K) [J/(mol K)]."""

@@ -430,9 +430,15 @@ def interaction_parameters(
                 pairs.append(PairParameter(a, b, value, "override", detail))
             elif db_value is not None:
                 value = db_value
-                pairs.append(PairParameter(
-                    a, b, value, "database",
-                    f"thermo interaction-parameter database ({_TABLE_LABEL})"))
+                pairs.append(
+                    PairParameter(
+                        a,
+                        b,
+                        value,
+                        "database",
+                        f"thermo interaction-parameter database ({_TABLE_LABEL})",
+                    )
+                )
             else:
                 value = 0.0
                 why = (

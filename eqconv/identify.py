@@ -18,11 +18,19 @@ from .errors import AmbiguousSpeciesError, UnknownSpeciesError
 
 __all__ = ["Identity", "parse_formula", "resolve"]
 
-_PHASE_SUFFIX = re.compile(
-    r"\s*\((g|gas|s|solid|cr|gr|graphite|l|liq|liquid)\)\s*$", re.IGNORECASE
-)
-_PHASES = {"g": "g", "gas": "g", "s": "s", "solid": "s", "cr": "s", "gr": "s",
-           "graphite": "s", "l": "l", "liq": "l", "liquid": "l"}
+_PHASE_SUFFIX = re.compile(r"\s*\((g|gas|s|solid|cr|gr|graphite|l|liq|liquid)\)\s*$", re.IGNORECASE)
+_PHASES = {
+    "g": "g",
+    "gas": "g",
+    "s": "s",
+    "solid": "s",
+    "cr": "s",
+    "gr": "s",
+    "graphite": "s",
+    "l": "l",
+    "liq": "l",
+    "liquid": "l",
+}
 _CAS = re.compile(r"^\d{2,7}-\d{2}-\d$")
 _FORMULA = re.compile(r"^(?:[A-Z][a-z]?\d*|\((?:[A-Z][a-z]?\d*)+\)\d*)+$")
 
@@ -140,8 +148,9 @@ def _identity(cas: str, name: str, key: str, phase: str) -> Identity:
         raise UnknownSpeciesError(f"no formula is known for CAS {cas} ({name})")
     if phase != "g":
         key = f"{key}({phase})"
-    return Identity(key=key, cas=cas, name=name, formula=atoms_to_Hill(atoms),
-                    atoms=atoms, phase=phase)
+    return Identity(
+        key=key, cas=cas, name=name, formula=atoms_to_Hill(atoms), atoms=atoms, phase=phase
+    )
 
 
 @cache

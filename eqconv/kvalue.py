@@ -58,8 +58,9 @@ def ln_k_vant_hoff(T: ArrayLike, delta_H0: float, delta_S0: float) -> FloatArray
     return -delta_H0 / (R * T) + delta_S0 / R
 
 
-def ln_k_from_increments(T: ArrayLike, delta_H0: float, delta_S0: float,
-                         dh_int: ArrayLike, ds_int: ArrayLike) -> FloatArray:
+def ln_k_from_increments(
+    T: ArrayLike, delta_H0: float, delta_S0: float, dh_int: ArrayLike, ds_int: ArrayLike
+) -> FloatArray:
     """ln K with the Kirchhoff heat-capacity correction.
 
     Parameters

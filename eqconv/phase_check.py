@@ -95,14 +95,23 @@ def vapour_pressure_model(cas: str) -> VapourPressure | None:
     Tc = tc_of(cas)
     p101 = (getattr(obj, "DIPPR101_parameters", None) or {}).get("DIPPR_PERRY_8E")
     if p101 and Tc:
-        return VapourPressure("dippr101", tuple(float(p101[k]) for k in "ABCDE"), float(Tc),
-                              float(p101["Tmin"]), "DIPPR 101, Perry's 8th ed. (via thermo)")
+        return VapourPressure(
+            "dippr101",
+            tuple(float(p101[k]) for k in "ABCDE"),
+            float(Tc),
+            float(p101["Tmin"]),
+            "DIPPR 101, Perry's 8th ed. (via thermo)",
+        )
     for key in ("WAGNER_POLING", "VDI_PPDS"):
         w = (getattr(obj, "Wagner_parameters", None) or {}).get(key)
         if w:
-            return VapourPressure("wagner", (float(w["Pc"]), float(w["a"]), float(w["b"]),
-                                             float(w["c"]), float(w["d"])), float(w["Tc"]),
-                                  float(w["Tmin"]), f"Wagner equation, {key} (via thermo)")
+            return VapourPressure(
+                "wagner",
+                (float(w["Pc"]), float(w["a"]), float(w["b"]), float(w["c"]), float(w["d"])),
+                float(w["Tc"]),
+                float(w["Tmin"]),
+                f"Wagner equation, {key} (via thermo)",
+            )
     return None
 
 
@@ -133,14 +142,21 @@ class GasPhaseCheck:
         if n_bad == 0:
             return "gas-phase check: no component reaches its vapour pressure"
         worst = max(self.saturation, key=lambda k: float(np.max(self.saturation[k])))
-        return (f"gas-phase assumption fails at {n_bad} of {self.condenses.size} point(s): "
-                f"ideal-solution dew index up to {float(np.max(self.dew_index)):.3g}; "
-                f"{worst} reaches {float(np.max(self.saturation[worst])):.3g} × its vapour "
-                "pressure (Raoult's-law estimate)")
+        return (
+            f"gas-phase assumption fails at {n_bad} of {self.condenses.size} point(s): "
+            f"ideal-solution dew index up to {float(np.max(self.dew_index)):.3g}; "
+            f"{worst} reaches {float(np.max(self.saturation[worst])):.3g} × its vapour "
+            "pressure (Raoult's-law estimate)"
+        )
 
 
-def check_gas_phase(species: Sequence[Species], mole_fractions: Mapping[str, ArrayLike],
-                    T: ArrayLike, P: ArrayLike, warn: bool = True) -> GasPhaseCheck:
+def check_gas_phase(
+    species: Sequence[Species],
+    mole_fractions: Mapping[str, ArrayLike],
+    T: ArrayLike,
+    P: ArrayLike,
+    warn: bool = True,
+) -> GasPhaseCheck:
     """Flag points where a component would condense from the equilibrium gas.
 
     Parameters
@@ -164,9 +180,11 @@ def check_gas_phase(species: Sequence[Species], mole_fractions: Mapping[str, Arr
     P = as_pressure(P)
     sat: dict[str, FloatArray] = {}
     sources: dict[str, str] = {}
-    shape = np.broadcast_shapes(T.shape, P.shape,
-                                *(np.shape(mole_fractions[s.key]) for s in species
-                                  if s.key in mole_fractions))
+    shape = np.broadcast_shapes(
+        T.shape,
+        P.shape,
+        *(np.shape(mole_fractions[s.key]) for s in species if s.key in mole_fractions),
+    )
     dew = np.zeros(shape)
     for sp in species:
         if sp.phase != "g" or sp.key not in mole_fractions:

@@ -107,8 +107,9 @@ def parse_equation(equation: str) -> dict[str, float]:
     return out
 
 
-def atom_imbalance(coefficients: Mapping[str, float],
-                   atoms: Mapping[str, Mapping[str, int]]) -> dict[str, float]:
+def atom_imbalance(
+    coefficients: Mapping[str, float], atoms: Mapping[str, Mapping[str, int]]
+) -> dict[str, float]:
     """Net element change Σ ν_i a_ij for every element that does not balance.
 
     Parameters
@@ -165,8 +166,12 @@ class Reaction:
     species the pure phase (activity 1).
     """
 
-    def __init__(self, equation: str | Mapping[str, float], data: str = "default",
-                 species: Iterable[Species] | Mapping[str, Species] | None = None) -> None:
+    def __init__(
+        self,
+        equation: str | Mapping[str, float],
+        data: str = "default",
+        species: Iterable[Species] | Mapping[str, Species] | None = None,
+    ) -> None:
         if isinstance(equation, Mapping):
             raw = {str(k): float(v) for k, v in equation.items() if float(v) != 0.0}
             if not raw:
@@ -177,8 +182,9 @@ class Reaction:
             raw = parse_equation(equation)
         given: dict[str, Species] = {}
         if species is not None:
-            items = species.items() if isinstance(species, Mapping) else (
-                (s.key, s) for s in species)
+            items = (
+                species.items() if isinstance(species, Mapping) else ((s.key, s) for s in species)
+            )
             for name, sp in items:
                 if not isinstance(sp, Species):
                     raise InputError(f"species[{name!r}] must be a Species; got {type(sp)}")
@@ -211,7 +217,8 @@ class Reaction:
         self.keys: tuple[str, ...] = tuple(coefficients)
         self.nu: FloatArray = np.array([coefficients[k] for k in self.keys])
         self.delta_n_gas: float = float(
-            sum(nu for sp, nu in zip(self.species, self.nu, strict=True) if sp.phase == "g"))
+            sum(nu for sp, nu in zip(self.species, self.nu, strict=True) if sp.phase == "g")
+        )
         self.equation: str = self._text(coefficients)
 
     @staticmethod
@@ -248,8 +255,13 @@ class Reaction:
         return standard_pressure_shift(self.delta_n_gas, P_BAR, standard_pressure)
 
     # ------------------------------------------------------------------ public API
-    def ln_K(self, T: ArrayLike, model: Model = "kirchhoff", standard_pressure: float = P_BAR,
-             strict: bool = False) -> FloatArray:
+    def ln_K(
+        self,
+        T: ArrayLike,
+        model: Model = "kirchhoff",
+        standard_pressure: float = P_BAR,
+        strict: bool = False,
+    ) -> FloatArray:
         """Natural logarithm of the equilibrium constant K(T).
 
         Parameters
@@ -285,8 +297,13 @@ class Reaction:
             out = -self._sum("mu0_over_RT", T, strict)
         return out + self._p_shift(standard_pressure)
 
-    def K(self, T: ArrayLike, model: Model = "kirchhoff", standard_pressure: float = P_BAR,
-          strict: bool = False) -> FloatArray:
+    def K(
+        self,
+        T: ArrayLike,
+        model: Model = "kirchhoff",
+        standard_pressure: float = P_BAR,
+        strict: bool = False,
+    ) -> FloatArray:
         """Equilibrium constant K(T) [-] (see :meth:`ln_K`)."""
         return np.exp(self.ln_K(T, model, standard_pressure, strict))
 
@@ -298,17 +315,30 @@ class Reaction:
             return np.full_like(T, self.delta_H0)
         return self._sum("enthalpy", T, strict)
 
-    def delta_S(self, T: ArrayLike, model: Model = "kirchhoff", standard_pressure: float = P_BAR,
-                strict: bool = False) -> FloatArray:
+    def delta_S(
+        self,
+        T: ArrayLike,
+        model: Model = "kirchhoff",
+        standard_pressure: float = P_BAR,
+        strict: bool = False,
+    ) -> FloatArray:
         """Standard reaction entropy ΔrS°(T) [J/(mol K)] at standard pressure p° [Pa]."""
         self._check_model(model)
         T = as_temperature(T)
-        base = (np.full_like(T, self.delta_S0) if model == "vant_hoff"
-                else self._sum("entropy", T, strict))
+        base = (
+            np.full_like(T, self.delta_S0)
+            if model == "vant_hoff"
+            else self._sum("entropy", T, strict)
+        )
         return base + R * self._p_shift(standard_pressure)
 
-    def delta_G(self, T: ArrayLike, model: Model = "kirchhoff", standard_pressure: float = P_BAR,
-                strict: bool = False) -> FloatArray:
+    def delta_G(
+        self,
+        T: ArrayLike,
+        model: Model = "kirchhoff",
+        standard_pressure: float = P_BAR,
+        strict: bool = False,
+    ) -> FloatArray:
         """Standard reaction Gibbs energy ΔrG°(T) = −R T ln K [J/mol]."""
         T = as_temperature(T)
         return -R * T * self.ln_K(T, model, standard_pressure, strict)

@@ -59,8 +59,9 @@ class DataReport:
 
     def to_json(self, path: str | Path | None = None, overwrite: bool = False) -> str:
         """Write the table as JSON to `path` (never overwriting unless asked); return the text."""
-        text = json.dumps({"rows": list(self.rows), "notes": list(self.notes)}, indent=2,
-                          ensure_ascii=False)
+        text = json.dumps(
+            {"rows": list(self.rows), "notes": list(self.notes)}, indent=2, ensure_ascii=False
+        )
         if path is not None:
             _write(Path(path), text, overwrite)
         return text
@@ -82,13 +83,30 @@ def _species_rows(sp: Species) -> list[dict[str, Any]]:
     lo, hi = sp.T_range
     base = {"species": sp.key, "CAS": sp.cas, "data": sp.data}
     return [
-        {**base, "quantity": "ΔfH°(298.15 K)", "value": f"{sp.hf298 / 1e3:.3f}",
-         "unit": "kJ/mol", "source": sp.sources.get("hf298", ""), "valid range": ""},
-        {**base, "quantity": "S°(298.15 K, 1 bar)", "value": f"{sp.s298:.3f}",
-         "unit": "J/(mol K)", "source": sp.sources.get("s298", ""), "valid range": ""},
-        {**base, "quantity": "Cp°(298.15 K)", "value": f"{float(sp.cp_model.cp(298.15)):.3f}",
-         "unit": "J/(mol K)", "source": sp.sources.get("cp", sp.cp_model.method),
-         "valid range": f"{lo:g}–{hi:g} K"},
+        {
+            **base,
+            "quantity": "ΔfH°(298.15 K)",
+            "value": f"{sp.hf298 / 1e3:.3f}",
+            "unit": "kJ/mol",
+            "source": sp.sources.get("hf298", ""),
+            "valid range": "",
+        },
+        {
+            **base,
+            "quantity": "S°(298.15 K, 1 bar)",
+            "value": f"{sp.s298:.3f}",
+            "unit": "J/(mol K)",
+            "source": sp.sources.get("s298", ""),
+            "valid range": "",
+        },
+        {
+            **base,
+            "quantity": "Cp°(298.15 K)",
+            "value": f"{float(sp.cp_model.cp(298.15)):.3f}",
+            "unit": "J/(mol K)",
+            "source": sp.sources.get("cp", sp.cp_model.method),
+            "valid range": f"{lo:g}–{hi:g} K",
+        },
     ]
 
 

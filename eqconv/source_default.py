@@ -56,8 +56,7 @@ S_RANKING: tuple[tuple[str, str], ...] = (
 #: the source gives none): ΔfH° [J/mol], S° [J/(mol K)]. For ATcT values the uncertainty
 #: that chemicals ships with the ATcT table is used where present (0.01–0.1 kJ/mol for
 #: common small molecules); compilations are looser.
-U_HF_BY_SOURCE = {"ATCT_G": 0.1e3, "WEBBOOK": 0.4e3, "CRC": 0.5e3, "JANAF": 0.4e3,
-                  "YAWS": 2.0e3}
+U_HF_BY_SOURCE = {"ATCT_G": 0.1e3, "WEBBOOK": 0.4e3, "CRC": 0.5e3, "JANAF": 0.4e3, "YAWS": 2.0e3}
 U_S_BY_SOURCE = {"WEBBOOK": 0.2, "CRC": 0.3, "JANAF": 0.2, "YAWS": 1.0}
 U_CP_REL_BY_METHOD = {"shomate": 0.002, "trc": 0.01, "poling": 0.02, "monatomic": 0.0}
 
@@ -80,8 +79,9 @@ class DefaultRecord:
     u_cp_rel: float
 
 
-def _first(ranking: tuple[tuple[str, str], ...], getter: object, methods: list[str],
-           cas: str) -> tuple[float, str, str] | None:
+def _first(
+    ranking: tuple[tuple[str, str], ...], getter: object, methods: list[str], cas: str
+) -> tuple[float, str, str] | None:
     for key, label in ranking:
         if key in methods:
             value = getter(cas, method=key)  # type: ignore[operator]
@@ -97,19 +97,32 @@ def _cp_model(cas: str, key: str) -> tuple[CpModel, str]:
     trc_p = (getattr(obj, "TRCCp_parameters", None) or {}).get("TRCIG")
     trc = None
     if trc_p:
-        trc = TRCCp(tuple(float(trc_p[f"a{k}"]) for k in range(8)), float(trc_p["Tmin"]),
-                    float(trc_p["Tmax"]), method="TRC ideal-gas correlation (via thermo)")
-    shomate = {k: v for k, v in (getattr(obj, "Shomate_parameters", None) or {}).items()
-               if k.startswith("WEBBOOK_SHOMATE_")}
+        trc = TRCCp(
+            tuple(float(trc_p[f"a{k}"]) for k in range(8)),
+            float(trc_p["Tmin"]),
+            float(trc_p["Tmax"]),
+            method="TRC ideal-gas correlation (via thermo)",
+        )
+    shomate = {
+        k: v
+        for k, v in (getattr(obj, "Shomate_parameters", None) or {}).items()
+        if k.startswith("WEBBOOK_SHOMATE_")
+    }
     if shomate:
         pieces: list[CpModel] = []
         for name in sorted(shomate, key=lambda k: shomate[k]["Tmin"]):
             p = shomate[name]
             # thermo stores the Shomate constants already scaled to T in K:
             # Cp = A + B T + C T² + D T³ + E / T²
-            pieces.append(PowerSeriesCp((p["A"], p["B"], p["C"], p["D"], p["E"]),
-                                        (0.0, 1.0, 2.0, 3.0, -2.0), float(p["Tmin"]),
-                                        float(p["Tmax"]), f"NIST WebBook Shomate {name[-1]}"))
+            pieces.append(
+                PowerSeriesCp(
+                    (p["A"], p["B"], p["C"], p["D"], p["E"]),
+                    (0.0, 1.0, 2.0, 3.0, -2.0),
+                    float(p["Tmin"]),
+                    float(p["Tmax"]),
+                    f"NIST WebBook Shomate {name[-1]}",
+                )
+            )
         method = "NIST WebBook Shomate"
         if pieces[0].T_min > 298.0 and trc is not None and trc.T_min <= 298.0:
             # the Shomate fit starts above 298.15 K (water: 500 K): bridge the gap with the
@@ -124,8 +137,9 @@ def _cp_model(cas: str, key: str) -> tuple[CpModel, str]:
     if cas in _NOBLE_GASES:
         # an ideal monatomic gas has Cp° = 5/2 R exactly (translation only; electronic
         # excitation is negligible below ~5000 K) - common practice
-        return PowerSeriesCp((2.5 * R,), (0.0,), 50.0, 6000.0,
-                             "ideal monatomic gas, Cp° = 5/2 R"), "monatomic"
+        return PowerSeriesCp(
+            (2.5 * R,), (0.0,), 50.0, 6000.0, "ideal monatomic gas, Cp° = 5/2 R"
+        ), "monatomic"
     from chemicals.heat_capacity import Cp_data_Poling
 
     if cas in Cp_data_Poling.index:
@@ -133,10 +147,13 @@ def _cp_model(cas: str, key: str) -> tuple[CpModel, str]:
         coeffs = [row[f"a{k}"] for k in range(5)]
         limits = (row["Tmin"], row["Tmax"])
         if all(c == c for c in (*coeffs, *limits)):  # no NaN
-            return PowerSeriesCp(tuple(R * float(c) for c in coeffs),
-                                 (0.0, 1.0, 2.0, 3.0, 4.0), float(row["Tmin"]),
-                                 float(row["Tmax"]),
-                                 "Poling et al. ideal-gas polynomial (via chemicals)"), "poling"
+            return PowerSeriesCp(
+                tuple(R * float(c) for c in coeffs),
+                (0.0, 1.0, 2.0, 3.0, 4.0),
+                float(row["Tmin"]),
+                float(row["Tmax"]),
+                "Poling et al. ideal-gas polynomial (via chemicals)",
+            ), "poling"
     raise MissingDataError(
         f"no ranked ideal-gas Cp correlation (Shomate, TRC, Poling) for {key} (CAS {cas}); "
         "supply the species yourself or use data='janaf'"
@@ -183,6 +200,14 @@ def default_record(ident: Identity) -> DefaultRecord:
             f"{[k for k, _ in S_RANKING]}; supply it yourself"
         )
     cp, cp_key = _cp_model(cas, ident.key)
-    return DefaultRecord(hf298=hf[0], hf_source=hf[2], s298=s[0], s_source=s[2], cp=cp,
-                         cp_key=cp_key, u_hf298=_u_hf(cas, hf[1], hf[0], ident),
-                         u_s298=U_S_BY_SOURCE[s[1]], u_cp_rel=U_CP_REL_BY_METHOD[cp_key])
+    return DefaultRecord(
+        hf298=hf[0],
+        hf_source=hf[2],
+        s298=s[0],
+        s_source=s[2],
+        cp=cp,
+        cp_key=cp_key,
+        u_hf298=_u_hf(cas, hf[1], hf[0], ident),
+        u_s298=U_S_BY_SOURCE[s[1]],
+        u_cp_rel=U_CP_REL_BY_METHOD[cp_key],
+    )

@@ -120,6 +120,11 @@ def janaf_record(ident: Identity) -> JanafRecord:
     hf = float(dfh[ref[0]]) * 1e3
     if not np.isfinite(hf):
         raise MissingDataError(f"JANAF table {index} prints no ΔfH° at 298.15 K")
-    model = TabulatedCp(tuple(T[keep]), tuple(cp[keep]), tuple(h[keep]), tuple(s[keep]),
-                        method=f"NIST-JANAF table {index} (cubic Hermite in H and S)")
+    model = TabulatedCp(
+        tuple(T[keep]),
+        tuple(cp[keep]),
+        tuple(h[keep]),
+        tuple(s[keep]),
+        method=f"NIST-JANAF table {index} (cubic Hermite in H and S)",
+    )
     return JanafRecord(table=index, title=title, hf298=hf, s298=float(s[ref[0]]), cp=model)

@@ -96,8 +96,10 @@ class Species:
             raise InputError(f"S° of {self.key} must be > 0 J/(mol K); got {self.s298!r}")
 
     def __repr__(self) -> str:
-        return (f"Species({self.key!r}, data={self.data!r}, ΔfH°={self.hf298 / 1e3:.3f} kJ/mol, "
-                f"S°={self.s298:.3f} J/(mol K), Cp: {self.cp_model.method})")
+        return (
+            f"Species({self.key!r}, data={self.data!r}, ΔfH°={self.hf298 / 1e3:.3f} kJ/mol, "
+            f"S°={self.s298:.3f} J/(mol K), Cp: {self.cp_model.method})"
+        )
 
     # ------------------------------------------------------------------ range checks
     @property
@@ -118,8 +120,10 @@ class Species:
         for side, bad in (("below", T < lo), ("above", T > hi)):
             if np.any(bad):
                 worst = float(T[bad].min() if side == "below" else T[bad].max())
-                msg = (f"{self.key}: T = {worst:g} K is {side} the valid range "
-                       f"{lo:g}–{hi:g} K of its Cp model ({self.cp_model.method})")
+                msg = (
+                    f"{self.key}: T = {worst:g} K is {side} the valid range "
+                    f"{lo:g}–{hi:g} K of its Cp model ({self.cp_model.method})"
+                )
                 if strict:
                     raise OutOfRangeError(msg)
                 tag = (self.key, self.cp_model.method, side)
@@ -230,20 +234,41 @@ def _from_identity(ident: Identity, data: str) -> Species:
         label = f"NIST-JANAF 4th ed. (1998), table {rec.table}"
         if data != "janaf":
             label += " (condensed phases come from NIST-JANAF in the default set)"
-        return Species(key=ident.key, cas=ident.cas, name=ident.name, formula=ident.formula,
-                       atoms=dict(ident.atoms), phase=ident.phase, hf298=rec.hf298,
-                       s298=rec.s298, cp_model=rec.cp, data=data,
-                       sources={"hf298": label, "s298": label, "cp": label},
-                       u_hf298=u_hf, u_s298=U_S_DEFAULT, u_cp_rel=U_CP_REL_DEFAULT)
+        return Species(
+            key=ident.key,
+            cas=ident.cas,
+            name=ident.name,
+            formula=ident.formula,
+            atoms=dict(ident.atoms),
+            phase=ident.phase,
+            hf298=rec.hf298,
+            s298=rec.s298,
+            cp_model=rec.cp,
+            data=data,
+            sources={"hf298": label, "s298": label, "cp": label},
+            u_hf298=u_hf,
+            u_s298=U_S_DEFAULT,
+            u_cp_rel=U_CP_REL_DEFAULT,
+        )
     from .source_default import default_record
 
     drec = default_record(ident)
-    return Species(key=ident.key, cas=ident.cas, name=ident.name, formula=ident.formula,
-                   atoms=dict(ident.atoms), phase=ident.phase, hf298=drec.hf298,
-                   s298=drec.s298, cp_model=drec.cp, data=data,
-                   sources={"hf298": drec.hf_source, "s298": drec.s_source,
-                            "cp": drec.cp.method},
-                   u_hf298=drec.u_hf298, u_s298=drec.u_s298, u_cp_rel=drec.u_cp_rel)
+    return Species(
+        key=ident.key,
+        cas=ident.cas,
+        name=ident.name,
+        formula=ident.formula,
+        atoms=dict(ident.atoms),
+        phase=ident.phase,
+        hf298=drec.hf298,
+        s298=drec.s298,
+        cp_model=drec.cp,
+        data=data,
+        sources={"hf298": drec.hf_source, "s298": drec.s_source, "cp": drec.cp.method},
+        u_hf298=drec.u_hf298,
+        u_s298=drec.u_s298,
+        u_cp_rel=drec.u_cp_rel,
+    )
 
 
 @cache

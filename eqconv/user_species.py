@@ -102,7 +102,19 @@ def user_species(**fields: object) -> Species:
             f"user species: {loc}: {first['msg']} (got {first.get('input')!r})"
         ) from None
     atoms = parse_formula(d.formula)
-    return Species(key=d.key, cas=d.cas, name=d.name or d.key, formula=d.formula, atoms=atoms,
-                   phase=d.phase, hf298=d.hf298, s298=d.s298, cp_model=_cp_model(d.cp, d.source),
-                   data="user", sources={"hf298": d.source, "s298": d.source, "cp": d.source},
-                   u_hf298=d.u_hf298, u_s298=d.u_s298, u_cp_rel=d.u_cp_rel)
+    return Species(
+        key=d.key,
+        cas=d.cas,
+        name=d.name or d.key,
+        formula=d.formula,
+        atoms=atoms,
+        phase=d.phase,
+        hf298=d.hf298,
+        s298=d.s298,
+        cp_model=_cp_model(d.cp, d.source),
+        data="user",
+        sources={"hf298": d.source, "s298": d.source, "cp": d.source},
+        u_hf298=d.u_hf298,
+        u_s298=d.u_s298,
+        u_cp_rel=d.u_cp_rel,
+    )

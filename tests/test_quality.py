@@ -12,8 +12,9 @@ ROOT = Path(__file__).resolve().parents[1]
 
 
 def _run(*args: str) -> subprocess.CompletedProcess[str]:
-    return subprocess.run([sys.executable, "-m", *args], cwd=ROOT, capture_output=True,
-                          text=True, timeout=600)
+    return subprocess.run(
+        [sys.executable, "-m", *args], cwd=ROOT, capture_output=True, text=True, timeout=600
+    )
 
 
 def test_ruff_clean():

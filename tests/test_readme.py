@@ -22,8 +22,11 @@ def test_readme_has_exactly_two_commands():
 
 def test_ci_runs_the_readme_test_command_verbatim():
     test_cmd = _readme_commands()[1].strip()
-    ci_lines = [ln.strip() for ln in (ROOT / ".ci" / "run").read_text().splitlines()
-                if ln.strip() and not ln.lstrip().startswith("#")]
+    ci_lines = [
+        ln.strip()
+        for ln in (ROOT / ".ci" / "run").read_text().splitlines()
+        if ln.strip() and not ln.lstrip().startswith("#")
+    ]
     assert test_cmd in ci_lines
 
 

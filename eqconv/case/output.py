@@ -359,7 +359,7 @@ def _gas_model_notes(res: Any) -> list[str]:
 
     species = list({sp.key: sp for r in res.reactions for sp in r.species}.values())
     species += [sp for sp in res.species if sp.key not in {s.key for s in species}]
-    setup = eos_setup(kind, [s.key for s in species], [s.cas for s in species],
-                      [s.phase == "g" for s in species])
+    setup = eos_setup(
+        kind, [s.key for s in species], [s.cas for s in species], [s.phase == "g" for s in species]
+    )
     return [f"gas model: {kind}", *setup.report.lines()]
-
