@@ -610,27 +610,28 @@ def _coarse_plan(
     return coarse, nodes_all, np.tile(w, nrow), np.tile(near, nrow)
 
 
-def _interpolate(coarse: list[FloatArray], nodes: IntArray, w: FloatArray, near: IntArray) -> Warm:
-    """Start (λ, ln N, usable) from coarse solutions (λ, ln N, ok) at three neighbours.
+def _interpolate(coarse: FloatArray, nodes: IntArray, w: FloatArray, near: IntArray) -> Warm:
+    """Start (λ, ln N, usable) from the coarse solutions at three neighbours.
 
+    `coarse` (r + 2, nc): rows λ, ln N and converged (1.0 or 0.0) of the coarse points.
     Quadratic where all three neighbours converged; otherwise the nearest one, usable if it
     converged.
     """
-    ls, vs, oks = coarse
-    good = oks[nodes] > 0  # (3, m)
+    r = coarse.shape[0] - 2
+    G = [coarse.take(nodes[a], axis=1) for a in range(3)]  # (r + 2, m) each
+    good = [G[a][-1] > 0 for a in range(3)]
     quad = good[0] & good[1] & good[2]
-    lam = np.empty((ls.shape[0], nodes.shape[1]))
-    nu = np.empty(nodes.shape[1])
-    if np.all(quad):
-        lam[:] = w[0] * ls[:, nodes[0]] + w[1] * ls[:, nodes[1]] + w[2] * ls[:, nodes[2]]
-        nu[:] = w[0] * vs[nodes[0]] + w[1] * vs[nodes[1]] + w[2] * vs[nodes[2]]
-        return lam, nu, quad
-    cols = np.arange(nodes.shape[1])
-    ww = np.where(quad, w, 0.0)
-    ww[near[~quad], cols[~quad]] = 1.0
-    lam[:] = ww[0] * ls[:, nodes[0]] + ww[1] * ls[:, nodes[1]] + ww[2] * ls[:, nodes[2]]
-    nu[:] = ww[0] * vs[nodes[0]] + ww[1] * vs[nodes[1]] + ww[2] * vs[nodes[2]]
-    return lam, nu, quad | good[near, cols]
+    if not np.all(quad):
+        cols = np.arange(nodes.shape[1])
+        w = np.where(quad, w, 0.0)
+        w[near[~quad], cols[~quad]] = 1.0
+        ok = quad | np.stack(good)[near, cols]
+    else:
+        ok = quad
+    st = w[0] * G[0][:-1]
+    st += w[1] * G[1][:-1]
+    st += w[2] * G[2][:-1]
+    return st[:r], st[r], ok
 
 
 def _solve_points(
@@ -676,7 +677,7 @@ def _solve_points(
         )
 
     iters = np.zeros(len(pts))
-    coarse: list[FloatArray] = []  # λ, ln N, usable at the coarse points
+    coarse: FloatArray | None = None  # rows λ, ln N, usable at the coarse points
     stride = _LEVELS[0]
     if len(pts) >= 4 * stride and len(S) > prob.r:
         cpos, nodes, wts, near = _coarse_plan(len(pts), row if len(pts) == len(g) else 1, stride)
@@ -686,12 +687,14 @@ def _solve_points(
             res = run(pts[pos], None)
             iters[pos] += res["iters"]
             parts.append(res)
-        coarse = [np.concatenate([q[k] for q in parts], axis=-1) for k in ("lam", "nu", "ok")]
+        coarse = np.vstack(
+            [np.concatenate([q[k] for q in parts], axis=-1) for k in ("lam", "nu", "ok")]
+        )
     for lo in range(0, len(pts), chunk):
         pos = np.arange(lo, min(lo + chunk, len(pts)))
         idx = pts[pos]
         sl = slice(lo, lo + len(pos))
-        warm = _interpolate(coarse, nodes[:, sl], wts[:, sl], near[sl]) if coarse else None
+        warm = None if coarse is None else _interpolate(coarse, nodes[:, sl], wts[:, sl], near[sl])
         res = run(idx, warm)
         iters[pos] += res["iters"]
         cols: tuple[IntArray, ...] | slice = (
