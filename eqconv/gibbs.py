@@ -15,8 +15,9 @@ stationarity holds at every iterate; what remains are the element balances and �
 solved per point by damped Newton, vectorized over the grid in chunks:
 
 * start: the optimal dual of the linear programme min Σ g_i n_i (the K → ∞ limit, found
-  by enumerating bases), or the solution interpolated between neighbouring grid points
-  solved before (every 16th point is solved first) where that is closer;
+  by enumerating bases), or the solution interpolated (quadratically) between neighbouring
+  points of the same grid row solved before (every 16th point of each row and its last
+  point are solved first) where that is closer;
 * fast path: Newton on ln(Σ_i a_ij n_i) = ln b_j and ln Σ n_i = ln N; the matrix
   [[Aᵀ D A, Aᵀ n], [nᵀ A, 0]] (D = diag n) is solved by a Cholesky factorisation of its
   leading block and the Schur complement; Armijo backtracking on the squared residuals;
