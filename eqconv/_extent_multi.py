@@ -15,7 +15,6 @@ from typing import Any
 
 import numpy as np
 from numpy.typing import NDArray
-from scipy.optimize import linprog
 
 from ._extent_one import _solve_one
 from ._extent_robust import _FRACTION_TO_BOUNDARY, _chol_solve, _gas_terms, _solve_robust
@@ -59,6 +58,8 @@ def _pattern_lp(nu: FloatArray, present: BoolArray) -> tuple[FloatArray, BoolArr
     never = np.zeros(ns, dtype=bool)
     if absent.size == 0:
         return d, never, np.eye(nr)
+    from scipy.optimize import linprog  # (imported here: scipy.optimize is slow to import)
+
     A_ub = -nu[:, absent].T
     for s in absent:
         res = linprog(

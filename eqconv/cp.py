@@ -41,14 +41,16 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, field
-from typing import Protocol, runtime_checkable
+from typing import TYPE_CHECKING, Protocol, runtime_checkable
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
-from scipy.interpolate import CubicHermiteSpline
 
 from .constants import T_REF, R
 from .errors import InputError
+
+if TYPE_CHECKING:  # scipy.interpolate is imported when a table is built (import time)
+    from scipy.interpolate import CubicHermiteSpline
 
 FloatArray = NDArray[np.float64]
 
@@ -376,6 +378,8 @@ class TabulatedCp:
             raise InputError(
                 f"a heat-capacity table must bracket 298.15 K; it spans {T[0]}–{T[-1]} K"
             )
+        from scipy.interpolate import CubicHermiteSpline
+
         object.__setattr__(self, "_h", CubicHermiteSpline(T, h, cp, extrapolate=True))
         object.__setattr__(self, "_s", CubicHermiteSpline(T, s, cp / T, extrapolate=True))
         object.__setattr__(self, "_s_ref", float(self._s(T_REF)))

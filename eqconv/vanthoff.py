@@ -17,7 +17,6 @@ from dataclasses import dataclass
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
-from scipy import stats
 
 from ._validate import as_temperature
 from .constants import T_REF, R
@@ -515,6 +514,8 @@ def _weights(sigma: ArrayLike | None, shape: tuple[int, ...], name: str) -> Floa
 
 def _curvature_p(fit2: _LinFit, fit3: _LinFit, floor: float, absolute: bool) -> list[float]:
     """Statistic and p-value of the ΔrCp° term (F test, or chi-square with known sigma)."""
+    from scipy import stats  # (imported here: scipy.stats is slow to import)
+
     drop = max(fit2.rss - fit3.rss, 0.0)
     if fit2.rss <= floor:  # a straight line to rounding precision
         return [0.0, 1.0]
@@ -609,6 +610,8 @@ def fit_vant_hoff(
     w = _weights(sigma_lnK, t.shape, "sigma_lnK")
     absolute = bool(absolute_sigma) and sigma_lnK is not None
     y = np.log(k)
+
+    from scipy import stats  # (imported here: scipy.stats is slow to import)
 
     def errors(fit: _LinFit) -> tuple[FloatArray, list[float], float]:
         scale = 1.0 if absolute else fit.rss / fit.dof
