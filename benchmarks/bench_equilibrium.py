@@ -243,7 +243,8 @@ def case_reforming_wide(lines: list[str]) -> None:
     n_base = x.shape[0] * x.shape[1]
     ours = np.stack(res.extents, axis=-1)[rows, cols]
     good = np.isfinite(x[..., 0])
-    agree = float(np.max(np.abs(x[good] - ours[good])))
+    both = good & np.isfinite(ours[..., 0])
+    agree = float(np.max(np.abs(x[both] - ours[both]), initial=0.0))
     ours_ok = bool(res.converged[rows, cols][~good].all()) if np.any(~good) else True
     lines += [
         "### Case 2, wide grid: S/C 3, 200 × 200 (300-1500 K × 0.1-1000 bar, P geometric)",

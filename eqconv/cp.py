@@ -41,16 +41,13 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING, Protocol, runtime_checkable
+from typing import Any, Protocol, runtime_checkable
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from .constants import T_REF, R
 from .errors import InputError
-
-if TYPE_CHECKING:  # scipy.interpolate is imported when a table is built (import time)
-    from scipy.interpolate import CubicHermiteSpline
 
 FloatArray = NDArray[np.float64]
 
@@ -354,8 +351,9 @@ class TabulatedCp:
     h_nodes: tuple[float, ...]
     s_nodes: tuple[float, ...]
     method: str
-    _h: CubicHermiteSpline = field(init=False, repr=False, compare=False)
-    _s: CubicHermiteSpline = field(init=False, repr=False, compare=False)
+    # scipy.interpolate.CubicHermiteSpline (imported when a table is built: import time)
+    _h: Any = field(init=False, repr=False, compare=False)
+    _s: Any = field(init=False, repr=False, compare=False)
     _s_ref: float = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:

@@ -16,8 +16,9 @@ solved per point by damped Newton, vectorized over the grid in chunks:
 
 * start: the optimal dual of the linear programme min Σ g_i n_i (the K → ∞ limit, found
   by enumerating bases), or the solution interpolated (quadratically) between neighbouring
-  points of the same grid row solved before (every 16th point of each row and its last
-  point are solved first) where that is closer;
+  points solved before where that is closer: every 16th point of each row of the grid (its
+  last axis, when that has 64 points or more and the whole grid shares one species set)
+  and the row's last point are solved first; otherwise the flattened grid is one row;
 * fast path: Newton on ln(Σ_i a_ij n_i) = ln b_j and ln Σ n_i = ln N; the matrix
   [[Aᵀ D A, Aᵀ n], [nᵀ A, 0]] (D = diag n) is solved by a Cholesky factorisation of its
   leading block and the Schur complement; Armijo backtracking on the squared residuals;
@@ -71,7 +72,7 @@ IntArray = NDArray[np.intp]
 Warm = tuple[FloatArray, FloatArray, NDArray[np.bool_]]
 
 _PHASE1_ITER = 15  # the fast path hands a point over after this many iterations
-_LEVELS = (16,)  # every 16th point of each grid row is solved first, then all points
+_STRIDE = 16  # coarse points first: every 16th of each grid row (see _coarse_plan)
 _WARM_MERIT = 10.0  # a start from those is taken where its squared log residuals are below
 
 
@@ -153,24 +154,6 @@ class GibbsSolution:
 
 
 # ---------------------------------------------------------------------- one chunk of points
-_VERT: list[tuple[Problem, bytes, bool, FloatArray, NDArray[np.bool_]]] = []
-
-
-def _vertices(
-    prob: Problem, frows: FloatArray, elements: bool
-) -> tuple[FloatArray, NDArray[np.bool_]]:
-    """Vertex amounts and feasible bases of `prob` for the feed rows (read-only).
-
-    The last result is kept: consecutive chunks of one grid share their feed rows.
-    """
-    key = frows.tobytes() + str(frows.shape).encode()
-    if not (_VERT and _VERT[0][0] is prob and _VERT[0][1] == key and _VERT[0][2] == elements):
-        V, feas, _ = prob.vertices(frows, elements)
-        V.flags.writeable = feas.flags.writeable = False
-        _VERT[:] = [(prob, key, elements, V, feas)]
-    return _VERT[0][3], _VERT[0][4]
-
-
 def _solve_chunk(
     prob: Problem,
     g: FloatArray,
@@ -179,6 +162,7 @@ def _solve_chunk(
     b: FloatArray,
     elements: bool,
     warm: Warm | None,
+    vtable: tuple[FloatArray, NDArray[np.bool_]] | None = None,
     *,
     max_iter: int,
     tol: float,
@@ -188,14 +172,15 @@ def _solve_chunk(
 
     frows (u, nf) are the distinct feed rows of the chunk, finv (m,) maps points to them,
     b (m, ne) the element totals; `warm` offers another start (λ (r, m), ln N, usable),
-    taken where it leaves small residuals. Returns species-major ln n, mole
-    fractions, totals, residuals, iterations and the fast path's (λ, ln N, usable).
+    taken where it leaves small residuals; `vtable`: ``prob.vertices(frows, elements)[:2]``
+    if already known. Returns species-major ln n, mole fractions, totals, residuals,
+    iterations and the fast path's (λ, ln N, usable).
     """
     m, nS = len(g), len(prob.species)
     rows = np.arange(m)
     gT = np.ascontiguousarray((g if nS == g.shape[1] else g[:, prob.species]).T)
     bT = np.ascontiguousarray(b[:, prob.cb.cols].T)
-    V, feas = _vertices(prob, frows, elements)
+    V, feas = vtable if vtable is not None else prob.vertices(frows, elements)[:2]
     if not np.all(np.any(feas, axis=1)):
         bad = int(np.flatnonzero(~np.any(feas[finv], axis=1))[0])
         raise InputError(
@@ -248,7 +233,9 @@ def _solve_chunk(
             np.minimum(lnT[basis[0]], lnT[basis[-1]], out=score[k_])
             for i_ in basis[1:-1]:
                 np.minimum(score[k_], lnT[i_], out=score[k_])
-        bid = np.zeros(m, dtype=np.intp)  # argmax over the bases (axis 0), row by row
+        # argmax over the bases (axis 0), row by row (a NaN score is never chosen; scores
+        # are NaN only where the fast path failed, and those points are redone anyway)
+        bid = np.zeros(m, dtype=np.intp)
         top = score[0].copy()
         for k_ in range(1, len(score)):
             better = score[k_] > top
@@ -581,8 +568,9 @@ def _coarse_plan(
     """Coarse positions and, for every position, three coarse neighbours and their weights.
 
     The positions 0 … npts−1 are read as rows of length `row` (the last grid axis) when
-    they divide into such rows, else as one row. Coarse points: every `stride`-th point of
-    each row and its last point, so that no start is interpolated across two rows. Returns
+    they divide into such rows of at least 4·stride points, else as one row (npts must be
+    at least 4·stride). Coarse points: every `stride`-th point of each row and its last
+    point, so that no start is interpolated across two rows. Returns
     the coarse positions (nc,), the indices into them of the neighbours (3, npts), the
     quadratic (Lagrange) weights (3, npts) of each position in its row, and which of the
     three neighbours is the nearest (npts,).
@@ -591,19 +579,16 @@ def _coarse_plan(
     cc = np.unique(np.r_[np.arange(0, R, stride), R - 1])  # coarse columns of a row
     nc, nrow = len(cc), npts // R
     col = np.arange(R)
+    if nc < 3:
+        raise ValueError(f"a row of {R} points is too short for coarse starts (stride {stride})")
     k = np.minimum(np.searchsorted(cc, col, side="right") - 1, nc - 2)  # left neighbour
-    if nc >= 3:  # three nodes around each point (the first interval: the next three)
-        first = np.minimum(np.maximum(k - 1, 0), nc - 3)
-        nodes = np.stack([first, first + 1, first + 2])
-        t, x = cc[nodes].astype(float), col.astype(float)
-        w = np.empty_like(t)
-        for a in range(3):
-            b_, c_ = (a + 1) % 3, (a + 2) % 3
-            w[a] = (x - t[b_]) * (x - t[c_]) / ((t[a] - t[b_]) * (t[a] - t[c_]))
-    else:  # two coarse points per row: linear
-        nodes = np.stack([k, k + 1, k + 1])
-        t, x = cc[nodes].astype(float), col.astype(float)
-        w = np.stack([(t[1] - x) / (t[1] - t[0]), (x - t[0]) / (t[1] - t[0]), np.zeros(R)])
+    first = np.minimum(np.maximum(k - 1, 0), nc - 3)  # three nodes around each point
+    nodes = np.stack([first, first + 1, first + 2])
+    t, x = cc[nodes].astype(float), col.astype(float)
+    w = np.empty_like(t)
+    for a in range(3):
+        b_, c_ = (a + 1) % 3, (a + 2) % 3
+        w[a] = (x - t[b_]) * (x - t[c_]) / ((t[a] - t[b_]) * (t[a] - t[c_]))
     near = np.argmin(np.abs(t - x), axis=0)
     coarse = (np.arange(nrow)[:, None] * R + cc).reshape(-1)
     offset = np.arange(nrow)[:, None] * nc
@@ -622,16 +607,14 @@ def _interpolate(coarse: FloatArray, nodes: IntArray, w: FloatArray, near: IntAr
     G = [coarse.take(nodes[a], axis=1) for a in range(3)]  # (r + 2, m) each
     good = [G[a][-1] > 0 for a in range(3)]
     quad = good[0] & good[1] & good[2]
-    if not np.all(quad):
-        cols = np.arange(nodes.shape[1])
-        w = np.where(quad, w, 0.0)
-        w[near[~quad], cols[~quad]] = 1.0
-        ok = quad | np.stack(good)[near, cols]
-    else:
-        ok = quad
     st = w[0] * G[0][:-1]
     st += w[1] * G[1][:-1]
     st += w[2] * G[2][:-1]
+    ok = quad
+    if not np.all(quad):  # the nearest neighbour's own values (a failed one may hold NaN)
+        lone = np.flatnonzero(~quad)
+        st[:, lone] = np.stack(G)[near[lone], :-1, lone].T
+        ok = quad | np.stack(good)[near, np.arange(len(near))]
     return st[:r], st[r], ok
 
 
@@ -650,12 +633,13 @@ def _solve_points(
 ) -> None:
     """Solve the points `pts` of one group in chunks and fill `out`.
 
-    Coarse to fine (:func:`_coarse_plan` with stride _LEVELS[0], then every point): each
+    Coarse to fine (:func:`_coarse_plan` with stride _STRIDE, then every point): each
     point is offered the solution interpolated between the coarse points around it in its
     row (`row`: the length of the last grid axis) as a start.
     """
     S, ns = prob.species, out["lnn"].shape[1]
     fcols = prob.cb.cols if elements else S
+    last: list[tuple[bytes, tuple[FloatArray, NDArray[np.bool_]]]] = []  # vertex table kept
 
     def run(idx: IntArray, warm: Warm | None) -> dict[str, FloatArray]:
         sel: IntArray | slice = idx
@@ -666,20 +650,17 @@ def _solve_points(
             urow, uinv = np.zeros(1, dtype=np.intp), np.zeros(len(idx), dtype=np.intp)
         else:
             urow, uinv = np.unique(fi, return_inverse=True)
+        fr = frows[urow][:, fcols]
+        key = fr.tobytes() + str(fr.shape).encode()
+        if not last or last[0][0] != key:  # consecutive chunks usually share their feed rows
+            last[:] = [(key, prob.vertices(fr, elements)[:2])]
         return _solve_chunk(
-            prob,
-            g[sel],
-            frows[urow][:, fcols],
-            uinv.reshape(-1),
-            brows[fi],
-            elements,
-            warm,
-            **kw,
+            prob, g[sel], fr, uinv.reshape(-1), brows[fi], elements, warm, last[0][1], **kw
         )
 
     iters = np.zeros(len(pts))
     coarse: FloatArray | None = None  # rows λ, ln N, usable at the coarse points
-    stride = _LEVELS[0]
+    stride = _STRIDE
     if len(pts) >= 4 * stride and len(S) > prob.r:
         cpos, nodes, wts, near = _coarse_plan(len(pts), row if len(pts) == len(g) else 1, stride)
         parts = []

@@ -111,7 +111,7 @@ def _as_result(
         mu = mu0 + lnP[..., None]
         mu += sol.ln_amounts
         mu -= np.log(sol.total)[..., None]
-        if not np.all(present):  # (−inf − −inf = NaN there: only the other terms are summed)
+        if not np.all(present):  # ln n = −inf there: 0·(−inf) would spoil every product
             blocked = (~present).astype(float) @ (nu != 0).T.astype(float) > 0
             mu = np.where(present, mu, 0.0)
         residual = mu @ nu.T

@@ -454,3 +454,27 @@ def test_grid_rows_do_not_change_the_answer() -> None:
     assert grid.solution.converged.all() and flat.solution.converged.all()
     for k in keys:
         np.testing.assert_allclose(grid.amounts[k].ravel(), flat.amounts[k], rtol=1e-10, atol=1e-14)
+
+
+def test_interpolated_start_falls_back_to_the_nearest_converged_neighbour() -> None:
+    """A coarse point that failed (NaN state) never leaks into a start marked usable."""
+    from eqconv.gibbs import _coarse_plan, _interpolate
+
+    coarse_pos, nodes, w, near = _coarse_plan(96, 1, 16)
+    nc = len(coarse_pos)
+    lam = np.tile(np.arange(nc, dtype=float), (2, 1))  # λ_j = coarse index, ln N likewise
+    coarse = np.vstack([lam, np.arange(nc, dtype=float), np.ones(nc)])
+    coarse[:, 2] = np.nan
+    coarse[-1, 2] = 0.0  # the third coarse point failed
+    L, V, ok = _interpolate(coarse, nodes, w, near)
+    assert not np.any(ok & ~np.isfinite(V))
+    assert np.all(np.isfinite(L[:, ok]))
+    # where the failed point is one of the three neighbours, the nearest one's own values
+    touched = np.any(nodes == 2, axis=0)
+    np.testing.assert_array_equal(
+        ok[touched], near[touched] != np.argmax(nodes == 2, axis=0)[touched]
+    )
+    assert np.all(V[touched & ok] == nodes[near, np.arange(96)][touched & ok])
+    # elsewhere quadratic interpolation of a linear function: exact
+    far = ~touched
+    np.testing.assert_allclose(V[far], np.sum(w * nodes, axis=0)[far])
